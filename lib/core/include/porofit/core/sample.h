@@ -1,0 +1,63 @@
+#pragma once
+// One core plug's measurements, as read from a study file. SI units throughout.
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "porofit/core/dynamic.h"
+#include "porofit/core/error.h"
+
+namespace porofit {
+
+/// How K was measured. Static and dynamic data are never mixed in one fit.
+enum class MeasurementKind {
+  kStatic,   ///< drained static test: tangent bulk modulus given directly
+  kDynamic,  ///< ultrasonic Vp, Vs and density; K computed per point
+};
+
+/// Pressure path of the data set. Loading and unloading are never pooled.
+enum class Branch { kLoading, kUnloading };
+
+/// Plug axis relative to bedding.
+enum class Orientation {
+  kUnknown,
+  kVertical,    ///< axis normal to bedding
+  kHorizontal,  ///< axis parallel to bedding
+  kInclined,    ///< neither (e.g. 45 degrees)
+};
+
+std::string_view ToString(MeasurementKind k);
+std::string_view ToString(Branch b);
+std::string_view ToString(Orientation o);
+
+/// One pressure step.
+struct DataPoint {
+  double confining = 0;    ///< P_c, Pa
+  double pore = 0;         ///< P_p, Pa
+  double pressure = 0;     ///< differential pressure P = P_c - n P_p, Pa
+  double modulus = 0;      ///< K_dry, Pa (static: as given; dynamic: computed)
+  double sigma = 0;        ///< 1-sigma uncertainty of `modulus`, Pa; 0 = not given
+  std::optional<WaveData> waves;         ///< dynamic only: the raw velocities
+  std::optional<DynamicModuli> dynamic;  ///< dynamic only: derived moduli and QC
+  SourceLocation where;    ///< where this point was written (row of a CSV or YAML item)
+};
+
+/// A core plug tested along one branch of one cycle.
+struct Sample {
+  std::string id;
+  std::string lithology;          ///< free text, e.g. "clean sandstone"
+  double porosity = 0;            ///< fraction, [0, 1)
+  double bulk_density = 0;        ///< kg/m^3
+  Orientation orientation = Orientation::kUnknown;
+  MeasurementKind kind = MeasurementKind::kStatic;
+  Branch branch = Branch::kLoading;
+  int cycle = 1;                  ///< 1 = first loading cycle
+  double effective_pressure_coefficient = 1.0;  ///< n in P = P_c - n P_p
+  /// True if `sigma` values are absolute 1-sigma errors: the covariance is then
+  /// not rescaled by the residual variance (chi^2_nu is still reported).
+  bool sigma_absolute = false;
+  std::vector<DataPoint> points;
+  SourceLocation where;
+};
+
+}  // namespace porofit

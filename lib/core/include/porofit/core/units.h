@@ -1,0 +1,49 @@
+#pragma once
+// Units at the edges, SI inside.
+//
+// Every value stored in porofit's data types is in SI base units: pressure and
+// moduli in Pa, velocity in m/s, density in kg/m^3, compressibility in 1/Pa.
+// Conversions happen only where text is read or written, through the tables
+// here. Unit spellings are matched case-sensitively as listed (plus a few
+// common aliases such as "g/cm3" for "g/cc").
+//
+// Conversion factors (domain brief §2): 1 psi = 6894.757293168 Pa (exact by the
+// definition of the pound-force and inch); 1 bar = 1e5 Pa; 1 ft = 0.3048 m.
+#include <optional>
+#include <string>
+#include <string_view>
+#include <vector>
+
+namespace porofit::units {
+
+enum class Quantity {
+  kPressure,       ///< stress, pressure: Pa
+  kModulus,        ///< elastic modulus: Pa
+  kVelocity,       ///< wave speed: m/s
+  kDensity,        ///< mass density: kg/m^3
+  kDimensionless,  ///< fractions, ratios: 1
+};
+
+inline constexpr double kPsi = 6894.757293168361;  // Pa per psi
+inline constexpr double kFoot = 0.3048;            // m per ft
+inline constexpr double kMPa = 1e6;
+inline constexpr double kGPa = 1e9;
+
+/// Name of the SI unit of a quantity ("Pa", "m/s", ...).
+std::string_view SiUnit(Quantity q);
+/// Human name of the quantity ("pressure", ...).
+std::string_view QuantityName(Quantity q);
+
+/// Factor f such that value_SI = f * value_in_unit, or nullopt if `unit` is not
+/// a unit of `q`. Pressure and modulus accept Pa, kPa, MPa, GPa, psi, ksi,
+/// Mpsi, bar, kbar; velocity m/s, km/s, ft/s; density kg/m3 (kg/m³), g/cc
+/// (g/cm3); dimensionless "1", "fraction", "%" (0.01).
+std::optional<double> ToSiFactor(Quantity q, std::string_view unit);
+
+/// Units accepted for `q`, in the canonical spelling, for error messages.
+std::vector<std::string> AcceptedUnits(Quantity q);
+
+/// Comma-separated list of AcceptedUnits(q).
+std::string AcceptedUnitsList(Quantity q);
+
+}  // namespace porofit::units

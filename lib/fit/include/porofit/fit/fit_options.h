@@ -1,0 +1,60 @@
+#pragma once
+// Options of one weighted nonlinear least-squares fit. Every field has a
+// default; Validate() names the first field that breaks its rule.
+#include <cstdint>
+#include <string>
+
+namespace porofit {
+
+enum class RobustLoss {
+  kNone,    ///< plain least squares
+  kHuber,   ///< quadratic within `loss_scale`, linear outside
+  kCauchy,  ///< rho(s) = c^2 log(1 + s/c^2): strongly down-weights outliers
+};
+std::string_view ToString(RobustLoss l);
+
+struct FitOptions {
+  /// Robust loss on the standardised residuals r_i/sigma_i. Standard errors
+  /// of a robust fit come from the robustified normal equations at the
+  /// solution (Ceres' convention) and are approximate.
+  RobustLoss loss = RobustLoss::kNone;
+  /// Loss scale in standardised-residual units (sigma multiples): residuals
+  /// beyond about this many sigma are down-weighted. Must be > 0.
+  double loss_scale = 2.0;
+
+  /// Number of solver starts: the heuristic start plus (multistart - 1)
+  /// perturbed starts; the lowest cost wins. >= 1.
+  int multistart = 8;
+  /// Relative spread of the perturbed starts (log-normal factor exp(N(0, s))
+  /// on positive parameters, additive s*max(|theta|,1) otherwise). > 0.
+  double start_spread = 0.5;
+  /// Seed of the perturbation generator. Same seed, same result.
+  std::uint64_t seed = 20261201;
+
+  /// Levenberg–Marquardt iteration limit per start. >= 1.
+  int max_iterations = 500;
+  /// Ceres convergence tolerances (relative cost change, scaled gradient
+  /// max-norm, relative step). Tight by default: small fits are cheap, and the
+  /// defaults of the solver give only about 6 correct digits.
+  double function_tolerance = 1e-14;
+  double gradient_tolerance = 1e-14;
+  double parameter_tolerance = 1e-16;
+
+  /// Compute covariance, standard errors and correlations.
+  bool covariance = true;
+  /// Scale the covariance by s^2 = SSR/(n-p). The loader sets this false when
+  /// a sample's uncertainties are declared absolute. chi^2_nu is always reported.
+  bool scale_covariance = true;
+  /// Reciprocal condition number below which J^T W J counts as rank deficient.
+  double min_reciprocal_condition = 1e-14;
+
+  /// Identifiability flags: |correlation| above this is flagged. In (0, 1].
+  double correlation_threshold = 0.99;
+  /// Closure pressure outside [P_min / f, f * P_max] is flagged. >= 1.
+  double closure_range_factor = 3.0;
+
+  /// Empty if valid, otherwise "field = value violates rule".
+  std::string Validate() const;
+};
+
+}  // namespace porofit

@@ -1,0 +1,89 @@
+#pragma once
+// The outcome of one fit, as a value type. All numbers in SI (the model's
+// ParameterSpec::si_factor / ModelSpec::y_si_factor convert to working units
+// for display). Numbers that were not computed are NaN.
+#include <Eigen/Core>
+
+#include <string>
+#include <vector>
+
+namespace porofit {
+
+enum class FitStatus {
+  kConverged,         ///< solver met a convergence tolerance
+  kMaxIterations,     ///< stopped at the iteration limit: estimates unreliable
+  kNumericalFailure,  ///< model undefined / non-finite everywhere tried
+  kTooFewPoints,      ///< fewer points than free parameters (n < p)
+  kInvalidRequest,    ///< bounds, fixed values or starts inconsistent
+};
+std::string_view ToString(FitStatus s);
+
+struct ParameterResult {
+  std::string name;
+  std::string unit;          ///< working unit of the model (for display)
+  double si_factor = 1;      ///< SI = si_factor * working
+  double estimate = 0;       ///< SI
+  double std_error = 0;      ///< SI; NaN if not computed; 0 for fixed parameters
+  double start = 0;          ///< SI, the start of the winning solver run
+  bool fixed = false;
+  bool at_lower = false;     ///< estimate within 1e-6 (relative) of its lower bound
+  bool at_upper = false;
+  double lower = 0, upper = 0;  ///< SI bounds used (may be +-inf)
+};
+
+struct ResidualDiagnostics {
+  Eigen::VectorXd x;             ///< SI (Pa)
+  Eigen::VectorXd observed;      ///< SI
+  Eigen::VectorXd fitted;        ///< SI
+  Eigen::VectorXd sigma;         ///< SI weights' sigma_i (1 if none given, in working units scaled to SI)
+  Eigen::VectorXd raw;           ///< observed - fitted, SI
+  Eigen::VectorXd standardized;  ///< raw / (s * sigma_i * sqrt(1 - h_ii)) (internally studentised)
+  Eigen::VectorXd leverage;      ///< h_ii, diagonal of the weighted hat matrix
+  int runs = 0;                  ///< number of sign runs of the raw residuals (zeros dropped)
+  int n_positive = 0, n_negative = 0;
+  double runs_z = 0;             ///< Wald–Wolfowitz normal statistic
+  double runs_p = 0;             ///< two-sided p-value (normal approximation; weak when n < 10)
+  double durbin_watson = 0;      ///< sum (e_i - e_{i-1})^2 / sum e_i^2, weighted residuals in x order
+};
+
+struct FitResult {
+  std::string model_id;
+  FitStatus status = FitStatus::kInvalidRequest;
+  std::string message = "fit was not run";  ///< solver's or porofit's explanation
+  int iterations = 0;        ///< of the winning start
+  int starts_tried = 0;
+  int starts_converged = 0;
+
+  std::vector<ParameterResult> parameters;  ///< every model parameter, in model order
+  Eigen::MatrixXd covariance;   ///< free parameters only, SI, in order of `free_index`
+  Eigen::MatrixXd correlation;  ///< same order
+  std::vector<int> free_index;  ///< model-parameter index of each covariance row
+  bool covariance_ok = false;
+  std::string covariance_method;  ///< "ceres-dense-svd" or "eigen-pseudo-inverse" (fallback) or ""
+  bool covariance_scaled = true;  ///< multiplied by s^2
+
+  int n = 0;              ///< data points
+  int p = 0;              ///< free parameters
+  int dof = 0;            ///< n - p
+  double ssr = 0;         ///< weighted sum of squared residuals, sum (r_i/sigma_i)^2 (dimensionless when sigma given)
+  double chi2_reduced = 0;  ///< ssr / dof
+  double rmse = 0;        ///< sqrt(mean raw residual^2), SI
+  double r_squared = 0;   ///< 1 - SS_res/SS_tot (weighted)
+  double aic = 0, aicc = 0, bic = 0;  ///< Gaussian log-likelihood, sigma estimated unless absolute
+
+  // Flags.
+  bool rank_deficient = false;
+  bool closure_outside_range = false;
+  bool high_correlation = false;      ///< some |corr| > threshold
+  double max_abs_correlation = 0;
+  std::vector<std::string> warnings;  ///< human-readable, one per raised flag
+
+  ResidualDiagnostics residuals;
+
+  /// True if converged and the covariance (when requested) is usable.
+  bool IsUsable() const { return status == FitStatus::kConverged; }
+  /// One line: model, status, SSR, parameters with standard errors.
+  std::string BriefReport() const;
+};
+
+}  // namespace porofit
