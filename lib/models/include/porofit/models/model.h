@@ -74,12 +74,23 @@ struct ModelSpec {
   /// compared with the data's pressure range for the identifiability flag;
   /// -1 if the model has none.
   int closure_parameter = -1;
+  /// Closure-pressure scale in working units (MPa) at theta, for models whose
+  /// closure scale is a function of the parameters rather than one of them
+  /// (linear-exp: 1/D). Empty if the model has no closure scale. Where
+  /// closure_parameter >= 0 this returns theta[closure_parameter], so callers
+  /// may use either; ClosurePressure() below picks whichever is set.
+  std::function<double(const double* theta)> closure_pressure;
   /// True if the formula is undefined at x <= 0 (power law with reference pressure).
   bool requires_positive_x = false;
 
   size_t num_parameters() const { return parameters.size(); }
   /// Index of the parameter called `name`, or -1.
   int ParameterIndex(std::string_view name) const;
+  /// True if the model has a closure-pressure scale (either field set).
+  bool has_closure_pressure() const { return closure_pressure || closure_parameter >= 0; }
+  /// The closure-pressure scale (MPa) at theta: closure_pressure(theta) if set,
+  /// else theta[closure_parameter]; NaN if the model has none.
+  double ClosurePressure(const double* theta) const;
 };
 
 /// Builds value / value_and_gradient / slope from a functor type F with
