@@ -39,6 +39,9 @@ struct Study {
   std::string path;               ///< the study file
   std::vector<InputFile> inputs;  ///< study file first, then data files in order of use
   std::vector<StudySample> samples;
+  /// Non-fatal findings of the loader, each "file:line:col: warning: message"
+  /// (e.g. Vp/Vs <= sqrt(2), a Poisson ratio <= 0), in file order.
+  std::vector<std::string> warnings;
 };
 
 }  // namespace porofit

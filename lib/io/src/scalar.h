@@ -1,0 +1,31 @@
+#pragma once
+// Numbers with units as written in study files: "12.5 GPa", "3 %", "0.21".
+#include <optional>
+#include <string>
+#include <string_view>
+
+namespace porofit::io::detail {
+
+struct NumberText {
+  double value = 0;
+  std::string unit;  ///< trimmed text after the number; empty if none
+};
+
+/// Splits "12.5 GPa" (or "12.5GPa") into 12.5 and "GPa". Returns nullopt if
+/// the text does not start with a number.
+std::optional<NumberText> SplitNumberUnit(std::string_view text);
+
+/// A product of powers of pressure units, as used by model parameters
+/// ("GPa", "1/GPa", "GPa/MPa", "GPa/MPa^(1/3)", "1"): SI factor and the
+/// exponent of the pressure dimension.
+struct UnitExpression {
+  double si_factor = 1;
+  double pressure_exponent = 0;
+};
+
+/// Parses a unit expression built from the pressure units of porofit::units,
+/// "1", "/", "*" and "^" with a number or "(a/b)". Returns nullopt if it
+/// cannot be parsed.
+std::optional<UnitExpression> ParseUnitExpression(std::string_view text);
+
+}  // namespace porofit::io::detail

@@ -1,0 +1,861 @@
+#include "porofit/io/study_loader.h"
+
+#include <yaml-cpp/yaml.h>
+
+#include <array>
+#include <cmath>
+#include <filesystem>
+#include <fstream>
+#include <optional>
+#include <sstream>
+
+#include "porofit/core/dynamic.h"
+#include "porofit/core/units.h"
+#include "porofit/io/csv.h"
+#include "scalar.h"
+#include "yaml_map.h"
+
+namespace porofit {
+namespace {
+
+using io::detail::Field;
+using io::detail::MapReader;
+using io::detail::SplitNumberUnit;
+using io::detail::TypeName;
+using io::detail::Where;
+using units::Quantity;
+
+constexpr double kInf = std::numeric_limits<double>::infinity();
+
+std::string Join(const std::vector<std::string>& words) {
+  std::string s;
+  for (const auto& w : words) s += (s.empty() ? "" : ", ") + w;
+  return s;
+}
+
+std::string Quote(const std::string& s) { return "'" + s + "'"; }
+
+// Words accepted for an enumerated key; the error lists them all.
+template <class E>
+E ParseChoice(const Field& f, const std::vector<std::pair<std::string, E>>& choices) {
+  const std::string& text = f.Scalar();
+  std::vector<std::string> names;
+  for (const auto& [name, value] : choices) {
+    if (name == text) return value;
+    names.push_back(name);
+  }
+  std::string msg = Quote(f.path) + " = " + Quote(text) + " is not one of " + Join(names);
+  const std::string near = NearestWord(text, names);
+  if (!near.empty()) msg += "; did you mean " + Quote(near) + "?";
+  throw InputError(f.at, msg);
+}
+
+// SI factor of `unit` for quantity q; throws with the accepted units.
+double UnitFactor(const std::string& unit, Quantity q, const std::string& what,
+                  const SourceLocation& at) {
+  if (auto f = units::ToSiFactor(q, unit)) return *f;
+  std::string msg = "unknown " + std::string(units::QuantityName(q)) + " unit " + Quote(unit) +
+                    " for " + what + "; accepted: " + units::AcceptedUnitsList(q);
+  const std::string near = NearestWord(unit, units::AcceptedUnits(q));
+  if (!near.empty()) msg += "; did you mean " + Quote(near) + "?";
+  throw InputError(at, msg);
+}
+
+// "2.3 g/cc" -> SI. The unit is required.
+double ParseQuantity(const Field& f, Quantity q) {
+  const std::string& text = f.Scalar();
+  auto nt = SplitNumberUnit(text);
+  if (!nt)
+    throw InputError(f.at, Quote(f.path) + " = " + Quote(text) + " is not a number with a unit (e.g. '" +
+                               std::string(q == Quantity::kDensity ? "2.65 g/cc" : "10 MPa") + "')");
+  if (nt->unit.empty())
+    throw InputError(f.at, Quote(f.path) + " = " + text + " needs a unit; accepted: " +
+                               units::AcceptedUnitsList(q));
+  const double v = nt->value * UnitFactor(nt->unit, q, Quote(f.path), f.at);
+  if (!std::isfinite(v)) throw InputError(f.at, Quote(f.path) + " = " + text + " is not finite");
+  return v;
+}
+
+// An uncertainty: absolute (SI) or relative to the value ("3 %").
+struct Sigma {
+  double value = 0;  // SI if absolute, fraction if relative
+  bool relative = false;
+  double Of(double x) const { return relative ? value * std::fabs(x) : value; }
+};
+
+Sigma ParseSigma(const Field& f, Quantity q) {
+  const std::string& text = f.Scalar();
+  auto nt = SplitNumberUnit(text);
+  if (!nt || nt->unit.empty())
+    throw InputError(f.at, Quote(f.path) + " = " + Quote(text) +
+                               " must be a number with a unit or '%' (e.g. '3 %')");
+  Sigma s;
+  if (nt->unit == "%") {
+    s.relative = true;
+    s.value = nt->value / 100.0;
+  } else {
+    s.value = nt->value * UnitFactor(nt->unit, q, Quote(f.path), f.at);
+  }
+  if (!(std::isfinite(s.value) && s.value > 0))
+    throw InputError(f.at, Quote(f.path) + " = " + text + " must be > 0");
+  return s;
+}
+
+// ---------------------------------------------------------------- fit options
+
+struct FitOptionsRead {
+  FitOptions options;
+  std::optional<bool> scale_covariance;  // explicit choice, if any
+  SourceLocation scale_covariance_at;
+  SourceLocation at;                      // the fit mapping
+  std::vector<std::pair<std::string, SourceLocation>> keys;  // given keys, for Validate() locations
+};
+
+void ReadFitOptions(const Field& field, const std::string& file, const std::string& owner,
+                    FitOptionsRead& out) {
+  MapReader m(field.node, file, "fit options of " + owner, field.path);
+  out.at = m.at();
+  Field loss = m.Get("loss"), loss_scale = m.Get("loss_scale"), multistart = m.Get("multistart"),
+        spread = m.Get("start_spread"), seed = m.Get("seed"), iters = m.Get("max_iterations"),
+        ftol = m.Get("function_tolerance"), gtol = m.Get("gradient_tolerance"),
+        ptol = m.Get("parameter_tolerance"), cov = m.Get("covariance"),
+        scale = m.Get("scale_covariance"), rcond = m.Get("min_reciprocal_condition"),
+        corr = m.Get("correlation_threshold"), closure = m.Get("closure_range_factor");
+  m.Finish();
+  FitOptions& o = out.options;
+  auto note = [&](const Field& f) { out.keys.emplace_back(f.key, f.key_at); };
+  auto to_int = [](const Field& f) {
+    const long long v = f.Integer();
+    if (v < -2147483647LL || v > 2147483647LL)
+      throw InputError(f.at, Quote(f.path) + " = " + f.Scalar() + " is too large");
+    return static_cast<int>(v);
+  };
+  if (loss) {
+    note(loss);
+    o.loss = ParseChoice<RobustLoss>(
+        loss, {{"none", RobustLoss::kNone}, {"huber", RobustLoss::kHuber}, {"cauchy", RobustLoss::kCauchy}});
+  }
+  if (loss_scale) note(loss_scale), o.loss_scale = loss_scale.Number();
+  if (multistart) note(multistart), o.multistart = to_int(multistart);
+  if (spread) note(spread), o.start_spread = spread.Number();
+  if (seed) {
+    note(seed);
+    const long long v = seed.Integer();
+    if (v < 0) throw InputError(seed.at, Quote(seed.path) + " = " + seed.Scalar() + " must be >= 0");
+    o.seed = static_cast<std::uint64_t>(v);
+  }
+  if (iters) note(iters), o.max_iterations = to_int(iters);
+  if (ftol) note(ftol), o.function_tolerance = ftol.Number();
+  if (gtol) note(gtol), o.gradient_tolerance = gtol.Number();
+  if (ptol) note(ptol), o.parameter_tolerance = ptol.Number();
+  if (cov) note(cov), o.covariance = cov.Boolean();
+  if (scale) {
+    note(scale);
+    out.scale_covariance = scale.Boolean();
+    out.scale_covariance_at = scale.at;
+  }
+  if (rcond) note(rcond), o.min_reciprocal_condition = rcond.Number();
+  if (corr) note(corr), o.correlation_threshold = corr.Number();
+  if (closure) note(closure), o.closure_range_factor = closure.Number();
+
+  const std::string problem = o.Validate();
+  if (!problem.empty()) {
+    // Validate() names the field as "fit.<name> = ..."; point at that key if it was written here.
+    SourceLocation where = out.at;
+    for (const auto& [key, at] : out.keys)
+      if (problem.rfind("fit." + key + " ", 0) == 0) where = at;
+    throw InputError(where, problem);
+  }
+}
+
+// --------------------------------------------------------------------- models
+
+double ParseParameterValue(const Field& f, const ParameterSpec& ps, const std::string& model_id) {
+  const std::string& text = f.Scalar();
+  auto nt = SplitNumberUnit(text);
+  if (!nt)
+    throw InputError(f.at, Quote(f.path) + " = " + Quote(text) + " is not a number with a unit (e.g. '1 " +
+                               ps.unit + "')");
+  double si = 0;
+  if (nt->unit.empty()) {
+    if (ps.unit != "1")
+      throw InputError(f.at, Quote(f.path) + " = " + text + " needs a unit (" + model_id + " " + ps.name +
+                                 " is in " + ps.unit + ", e.g. '" + text + " " + ps.unit + "')");
+    si = nt->value * ps.si_factor;
+  } else if (nt->unit == ps.unit) {
+    si = nt->value * ps.si_factor;
+  } else {
+    const auto given = io::detail::ParseUnitExpression(nt->unit);
+    const auto working = io::detail::ParseUnitExpression(ps.unit);
+    if (!given || !working || std::fabs(given->pressure_exponent - working->pressure_exponent) > 1e-9)
+      throw InputError(f.at, "unit " + Quote(nt->unit) + " of " + Quote(f.path) + " does not fit " + model_id +
+                                 " parameter " + ps.name + ", which is in " + ps.unit +
+                                 "; pressure units accepted: " + units::AcceptedUnitsList(Quantity::kPressure));
+    si = nt->value * given->si_factor;
+  }
+  if (!std::isfinite(si)) throw InputError(f.at, Quote(f.path) + " = " + text + " is not finite");
+  return si;
+}
+
+std::string Show(double si, const ParameterSpec& ps) {
+  return FormatNumber(si / ps.si_factor) + (ps.unit == "1" ? "" : " " + ps.unit);
+}
+
+ModelChoice ReadModelChoice(const YAML::Node& node, const std::string& file, const std::string& path,
+                            const ModelRegistry& registry) {
+  ModelChoice choice;
+  choice.where = Where(file, node.Mark());
+  Field id_field;
+  Field params;
+  if (node.IsScalar()) {
+    id_field.node = node;
+    id_field.path = path;
+    id_field.at = choice.where;
+    id_field.key_at = choice.where;
+    id_field.present = true;
+  } else if (node.IsMap()) {
+    MapReader m(node, file, Quote(path), path);
+    id_field = m.Get("id");
+    params = m.Get("parameters");
+    m.Finish();
+    if (!id_field) throw InputError(m.at(), "missing required key '" + path + ".id'");
+  } else {
+    throw InputError(choice.where, Quote(path) + " must be a model id or a mapping with 'id', found " +
+                                       TypeName(node));
+  }
+  choice.model_id = id_field.Scalar();
+  const ModelSpec* spec = registry.Find(choice.model_id);
+  if (spec == nullptr) {
+    std::string msg = "unknown model " + Quote(choice.model_id);
+    const std::string near = NearestWord(choice.model_id, registry.ids());
+    if (!near.empty()) msg += "; did you mean " + Quote(near) + "?";
+    msg += " valid models: " + Join(registry.ids());
+    throw InputError(id_field.at, msg);
+  }
+  if (!params) return choice;
+
+  std::vector<std::string> names;
+  for (const auto& p : spec->parameters) names.push_back(p.name);
+  MapReader pm(params.node, file, "parameters of model " + Quote(choice.model_id), params.path);
+  for (auto it = params.node.begin(); it != params.node.end(); ++it) {
+    const std::string name = it->first.Scalar();
+    const int index = spec->ParameterIndex(name);
+    if (index < 0) {
+      std::string msg = "model " + Quote(choice.model_id) + " has no parameter " + Quote(name);
+      const std::string near = NearestWord(name, names);
+      if (!near.empty()) msg += "; did you mean " + Quote(near) + "?";
+      msg += " parameters: " + Join(names);
+      throw InputError(Where(file, it->first.Mark()), msg);
+    }
+    const ParameterSpec& ps = spec->parameters[static_cast<size_t>(index)];
+    const Field pf = pm.Get(name);
+    MapReader sm(pf.node, file, "parameter " + name + " of model " + Quote(choice.model_id), pf.path);
+    Field fixed = sm.Get("fixed"), lower = sm.Get("lower"), upper = sm.Get("upper"), start = sm.Get("start"),
+          free = sm.Get("free");
+    sm.Finish();
+    ParameterSetting s;
+    if (fixed) s.fixed = ParseParameterValue(fixed, ps, choice.model_id);
+    if (lower) s.lower = ParseParameterValue(lower, ps, choice.model_id);
+    if (upper) s.upper = ParseParameterValue(upper, ps, choice.model_id);
+    if (start) s.start = ParseParameterValue(start, ps, choice.model_id);
+    if (free) s.free = free.Boolean();
+
+    if (fixed && start)
+      throw InputError(start.key_at, name + ": give 'fixed' or 'start', not both");
+    if (fixed && free && s.free)
+      throw InputError(free.key_at, name + ": a parameter cannot be both 'fixed' and 'free'");
+    if (free && s.free && !ps.fixed_by_default)
+      throw InputError(free.key_at, name + " of model " + Quote(choice.model_id) +
+                                        " is already free; 'free' applies only to parameters fixed by default");
+    const double model_lo = ps.lower * ps.si_factor, model_hi = ps.upper * ps.si_factor;
+    if (s.lower && *s.lower < model_lo)
+      throw InputError(lower.at, name + ": lower = " + Show(*s.lower, ps) + " is below the model's bound " +
+                                     Show(model_lo, ps));
+    if (s.upper && *s.upper > model_hi)
+      throw InputError(upper.at, name + ": upper = " + Show(*s.upper, ps) + " is above the model's bound " +
+                                     Show(model_hi, ps));
+    const double lo = s.lower.value_or(model_lo), hi = s.upper.value_or(model_hi);
+    if (!(lo < hi)) {
+      const Field& culprit = upper ? upper : lower;
+      throw InputError(culprit.at, name + ": lower = " + Show(lo, ps) + " is not below upper = " + Show(hi, ps));
+    }
+    auto check_inside = [&](const Field& f, double v, const char* what) {
+      if (v < lo || v > hi)
+        throw InputError(f.at, name + ": " + what + " = " + Show(v, ps) + " is outside the bounds [" + Show(lo, ps) +
+                                   ", " + Show(hi, ps) + "]");
+    };
+    if (s.fixed) check_inside(fixed, *s.fixed, "fixed");
+    if (s.start) check_inside(start, *s.start, "start");
+    choice.settings[name] = s;
+  }
+  pm.Finish();
+  return choice;
+}
+
+std::vector<ModelChoice> ReadModels(const Field& f, const std::string& file, const ModelRegistry& registry) {
+  f.ExpectList();
+  if (f.node.size() == 0) throw InputError(f.at, Quote(f.path) + " is empty: list at least one model");
+  std::vector<ModelChoice> out;
+  for (size_t i = 0; i < f.node.size(); ++i) {
+    ModelChoice c = ReadModelChoice(f.node[i], file, f.path + "[" + std::to_string(i + 1) + "]", registry);
+    for (const auto& prior : out)
+      if (prior.model_id == c.model_id)
+        throw InputError(c.where, "model " + Quote(c.model_id) + " is listed twice in " + Quote(f.path));
+    out.push_back(std::move(c));
+  }
+  return out;
+}
+
+// ----------------------------------------------------------------------- data
+
+enum Role { kPc, kPp, kP, kK, kVp, kVs, kRho, kSigmaK, kSigmaVp, kSigmaVs, kSigmaRho, kNumRoles };
+
+struct RoleInfo {
+  const char* name;
+  Quantity quantity;
+  bool sigma;  // may be given in '%'
+};
+
+constexpr std::array<RoleInfo, kNumRoles> kRoles = {{
+    {"P_c", Quantity::kPressure, false},
+    {"P_p", Quantity::kPressure, false},
+    {"P", Quantity::kPressure, false},
+    {"K", Quantity::kModulus, false},
+    {"Vp", Quantity::kVelocity, false},
+    {"Vs", Quantity::kVelocity, false},
+    {"rho", Quantity::kDensity, false},
+    {"sigma_K", Quantity::kModulus, true},
+    {"sigma_Vp", Quantity::kVelocity, true},
+    {"sigma_Vs", Quantity::kVelocity, true},
+    {"sigma_rho", Quantity::kDensity, true},
+}};
+
+struct Column {
+  Role role = kNumRoles;
+  std::string unit;
+  double factor = 1;      // SI per declared unit (or 0.01 for '%')
+  bool relative = false;  // sigma column in '%'
+  SourceLocation at;
+};
+
+struct Cell {
+  double value = 0;  // SI, or fraction for relative sigmas
+  double raw = 0;    // as written
+  SourceLocation at;
+};
+
+struct RawRow {
+  SourceLocation where;
+  std::array<std::optional<Cell>, kNumRoles> cells;
+};
+
+Column ParseColumn(const YAML::Node& node, const std::string& file, const std::string& path) {
+  Column c;
+  c.at = Where(file, node.Mark());
+  if (!node.IsScalar())
+    throw InputError(c.at, Quote(path) + " must be 'name unit' (e.g. 'P_c MPa'), found " + TypeName(node));
+  const std::string text = node.Scalar();
+  const size_t space = text.find_first_of(" \t");
+  const std::string name = text.substr(0, space);
+  std::vector<std::string> names;
+  for (const auto& r : kRoles) names.emplace_back(r.name);
+  for (int r = 0; r < kNumRoles; ++r)
+    if (name == kRoles[static_cast<size_t>(r)].name) c.role = static_cast<Role>(r);
+  if (c.role == kNumRoles) {
+    std::string msg = "unknown column " + Quote(name);
+    const std::string near = NearestWord(name, names);
+    if (!near.empty()) msg += "; did you mean " + Quote(near) + "?";
+    msg += " columns: " + Join(names);
+    throw InputError(c.at, msg);
+  }
+  if (space == std::string::npos || text.find_first_not_of(" \t", space) == std::string::npos)
+    throw InputError(c.at, "column " + Quote(name) + " needs a unit (e.g. '" + name + " " +
+                               std::string(units::AcceptedUnits(kRoles[c.role].quantity).front()) + "')");
+  c.unit = text.substr(text.find_first_not_of(" \t", space));
+  const RoleInfo& info = kRoles[c.role];
+  if (info.sigma && c.unit == "%") {
+    c.relative = true;
+    c.factor = 0.01;
+  } else {
+    c.factor = UnitFactor(c.unit, info.quantity, "column " + Quote(name), c.at);
+  }
+  return c;
+}
+
+// Converts one cell's text; `where` is the cell.
+Cell ReadCell(const std::string& text, const Column& col, const SourceLocation& where, const std::string& context) {
+  Cell cell;
+  cell.at = where;
+  if (text.empty())
+    throw InputError(where, "empty cell in " + context);
+  if (!csv::ParseNumber(text, cell.raw))
+    throw InputError(where, "non-numeric value " + Quote(text) + " in " + context);
+  if (!std::isfinite(cell.raw)) throw InputError(where, kRoles[col.role].name + std::string(" = ") + text + " is not finite");
+  cell.value = cell.raw * col.factor;
+  return cell;
+}
+
+std::string ShowCell(const Cell& c, const Column& col) { return FormatNumber(c.raw) + " " + col.unit; }
+
+// Splits a CSV header field "P_c", "P_c [MPa]", "P_c (MPa)" or "P_c MPa" into name and unit.
+std::pair<std::string, std::string> SplitHeader(const std::string& field) {
+  const size_t cut = field.find_first_of(" \t[(");
+  if (cut == std::string::npos) return {field, ""};
+  std::string name = field.substr(0, cut);
+  std::string rest = field.substr(cut);
+  const size_t a = rest.find_first_not_of(" \t[(");
+  const size_t b = rest.find_last_not_of(" \t])");
+  return {name, a == std::string::npos ? "" : rest.substr(a, b - a + 1)};
+}
+
+std::string ResolveDataPath(const std::string& study_path, const std::string& file) {
+  const std::filesystem::path p(file);
+  if (p.is_absolute()) return file;
+  return (std::filesystem::path(study_path).parent_path() / p).lexically_normal().string();
+}
+
+std::string ReadWholeFile(const std::string& path, bool& ok) {
+  std::ifstream in(path, std::ios::binary);
+  ok = static_cast<bool>(in);
+  if (!ok) return {};
+  std::ostringstream buffer;
+  buffer << in.rdbuf();
+  return buffer.str();
+}
+
+// ---------------------------------------------------------------- the loader
+
+class Loader {
+ public:
+  Loader(std::string path, const ModelRegistry& registry) : file_(std::move(path)), registry_(registry) {}
+
+  Study Parse(std::string_view text);
+
+ private:
+  void ReadSample(const YAML::Node& node, size_t index);
+  std::vector<RawRow> ReadData(const Field& data, const std::string& sample_what,
+                               std::array<std::optional<Column>, kNumRoles>& columns);
+  void Warn(const SourceLocation& at, const std::string& message) {
+    study_.warnings.push_back(at.ToString() + ": warning: " + message);
+  }
+
+  std::string file_;
+  const ModelRegistry& registry_;
+  Study study_;
+  FitOptionsRead defaults_fit_;
+  bool has_default_fit_ = false;
+  std::vector<ModelChoice> default_models_;
+};
+
+Study Loader::Parse(std::string_view text) {
+  YAML::Node root;
+  try {
+    root = YAML::Load(std::string(text));
+  } catch (const YAML::ParserException& e) {
+    throw InputError(Where(file_, e.mark), "yaml syntax error: " + e.msg);
+  }
+  if (root.IsNull()) throw InputError({file_, 0, 0}, "study file is empty");
+  study_.path = file_;
+  study_.inputs.push_back({file_, "study"});
+
+  MapReader top(root, file_, "the study");
+  Field version = top.Get("version"), name = top.Get("name"), description = top.Get("description"),
+        defaults = top.Get("defaults"), samples = top.Get("samples");
+  top.Finish();
+  if (version && version.Integer() != 1)
+    throw InputError(version.at, "version = " + version.Scalar() + " is not supported (this loader reads version 1)");
+  if (!name) throw InputError(top.at(), "missing required key 'name' in the study");
+  study_.name = name.Scalar();
+  if (description) study_.description = description.Scalar();
+
+  if (defaults) {
+    MapReader d(defaults.node, file_, "the study defaults", "defaults");
+    Field fit = d.Get("fit"), models = d.Get("models");
+    d.Finish();
+    if (fit) {
+      ReadFitOptions(fit, file_, "the study defaults", defaults_fit_);
+      has_default_fit_ = true;
+    }
+    if (models) default_models_ = ReadModels(models, file_, registry_);
+  }
+
+  if (!samples) throw InputError(top.at(), "missing required key 'samples' in the study");
+  samples.ExpectList();
+  if (samples.node.size() == 0) throw InputError(samples.at, "'samples' is empty: the study has no samples");
+  for (size_t i = 0; i < samples.node.size(); ++i) ReadSample(samples.node[i], i);
+  return std::move(study_);
+}
+
+std::vector<RawRow> Loader::ReadData(const Field& data, const std::string& sample_what,
+                                     std::array<std::optional<Column>, kNumRoles>& columns) {
+  MapReader d(data.node, file_, "data of " + sample_what, "data");
+  Field cols = d.Get("columns"), rows = d.Get("rows"), file = d.Get("file");
+  d.Finish();
+  if (!cols) throw InputError(d.at(), "missing required key 'data.columns' in " + sample_what);
+  cols.ExpectList();
+  if (cols.node.size() == 0) throw InputError(cols.at, "'data.columns' is empty");
+  std::vector<Column> order;
+  for (size_t i = 0; i < cols.node.size(); ++i) {
+    Column c = ParseColumn(cols.node[i], file_, "data.columns[" + std::to_string(i + 1) + "]");
+    if (columns[c.role])
+      throw InputError(c.at, std::string("column '") + kRoles[c.role].name + "' is declared twice");
+    columns[c.role] = c;
+    order.push_back(c);
+  }
+  if (rows && file) throw InputError(file.key_at, "give either 'data.rows' or 'data.file', not both");
+  if (!rows && !file) throw InputError(d.at(), "missing 'data.rows' or 'data.file' in " + sample_what);
+
+  std::vector<RawRow> out;
+  if (rows) {
+    rows.ExpectList();
+    if (rows.node.size() == 0) throw InputError(rows.at, "'data.rows' is empty: " + sample_what + " has no data points");
+    for (size_t i = 0; i < rows.node.size(); ++i) {
+      const YAML::Node row = rows.node[i];
+      RawRow r;
+      r.where = Where(file_, row.Mark());
+      if (!row.IsSequence())
+        throw InputError(r.where, "data row " + std::to_string(i + 1) + " must be a list of " +
+                                      std::to_string(order.size()) + " numbers, found " + TypeName(row));
+      if (row.size() != order.size())
+        throw InputError(r.where, "data row " + std::to_string(i + 1) + " has " + std::to_string(row.size()) +
+                                      " values, expected " + std::to_string(order.size()) + " (one per column)");
+      for (size_t j = 0; j < order.size(); ++j) {
+        const YAML::Node cell = row[j];
+        const SourceLocation at = Where(file_, cell.Mark());
+        const std::string context = "data row " + std::to_string(i + 1) + ", column " + std::to_string(j + 1) +
+                                    " (" + kRoles[order[j].role].name + ")";
+        if (!cell.IsScalar()) throw InputError(at, "non-numeric value in " + context + ": found " + TypeName(cell));
+        r.cells[order[j].role] = ReadCell(cell.Scalar(), order[j], at, context);
+      }
+      out.push_back(std::move(r));
+    }
+    return out;
+  }
+
+  // CSV file.
+  const std::string& name = file.Scalar();
+  const std::string path = ResolveDataPath(file_, name);
+  bool ok = false;
+  const std::string text = ReadWholeFile(path, ok);
+  if (!ok) throw InputError(file.at, "cannot open data file " + Quote(name) + " (looked for " + Quote(path) + ")");
+  bool seen = false;
+  for (const auto& in : study_.inputs) seen = seen || (in.path == path && in.role == "data");
+  if (!seen) study_.inputs.push_back({path, "data"});
+  const csv::Table table = csv::ParseCsv(text, path);
+  if (!table.has_header) throw InputError({path, 0, 0}, "data file " + Quote(name) + " has no header line");
+
+  // Map header fields onto declared columns.
+  std::vector<std::string> declared;
+  for (const auto& c : order) declared.emplace_back(kRoles[c.role].name);
+  std::vector<const Column*> by_field(table.header.fields.size(), nullptr);
+  for (size_t i = 0; i < table.header.fields.size(); ++i) {
+    const auto [hname, hunit] = SplitHeader(table.header.fields[i]);
+    const SourceLocation at = table.header.Where(path, i);
+    const Column* col = nullptr;
+    for (const auto& c : order)
+      if (hname == kRoles[c.role].name) col = &c;
+    if (col == nullptr) {
+      std::string msg = "header mismatch: column " + Quote(hname) + " of " + Quote(name) +
+                        " is not declared in data.columns (" + Join(declared) + ")";
+      const std::string near = NearestWord(hname, declared);
+      if (!near.empty()) msg += "; did you mean " + Quote(near) + "?";
+      throw InputError(at, msg);
+    }
+    for (size_t k = 0; k < i; ++k)
+      if (by_field[k] == col) throw InputError(at, "header mismatch: column " + Quote(hname) + " appears twice");
+    if (!hunit.empty() && hunit != col->unit) {
+      const auto f = col->relative ? (hunit == "%" ? std::optional<double>(0.01) : std::nullopt)
+                                   : units::ToSiFactor(kRoles[col->role].quantity, hunit);
+      if (!f || *f != col->factor)
+        throw InputError(at, "header mismatch: column " + Quote(hname) + " is declared in " + col->unit +
+                                 " but the file header says " + hunit);
+    }
+    by_field[i] = col;
+  }
+  for (const auto& c : order) {
+    bool found = false;
+    for (const Column* p : by_field) found = found || p == &c;
+    if (!found)
+      throw InputError({path, table.header.line, 0}, std::string("declared column '") + kRoles[c.role].name +
+                                                         "' is missing from the header of " + Quote(name));
+  }
+  if (table.rows.empty())
+    throw InputError({path, table.header.line, 0}, "data file " + Quote(name) + " has no data rows");
+  for (const auto& row : table.rows) {
+    RawRow r;
+    r.where = {path, row.line, 0};
+    if (row.fields.size() != by_field.size())
+      throw InputError(r.where, "expected " + std::to_string(by_field.size()) + " fields (as in the header), found " +
+                                    std::to_string(row.fields.size()));
+    for (size_t j = 0; j < row.fields.size(); ++j) {
+      const Column& col = *by_field[j];
+      const std::string context = "column " + std::to_string(j + 1) + " (" + kRoles[col.role].name + ")";
+      r.cells[col.role] = ReadCell(row.fields[j], col, row.Where(path, j), context);
+    }
+    out.push_back(std::move(r));
+  }
+  return out;
+}
+
+void Loader::ReadSample(const YAML::Node& node, size_t index) {
+  const std::string slot = "samples[" + std::to_string(index + 1) + "]";
+  MapReader m(node, file_, slot);
+  Field id = m.Get("id"), lithology = m.Get("lithology"), porosity = m.Get("porosity"),
+        density = m.Get("bulk_density"), orientation = m.Get("orientation"), measurement = m.Get("measurement"),
+        branch = m.Get("branch"), cycle = m.Get("cycle"), coefficient = m.Get("effective_pressure_coefficient"),
+        pore_pressure = m.Get("pore_pressure"), uncertainty = m.Get("uncertainty"), data = m.Get("data"),
+        models = m.Get("models"), fit = m.Get("fit");
+  m.Finish();
+
+  StudySample ss;
+  Sample& s = ss.sample;
+  s.where = m.at();
+  if (!id) throw InputError(m.at(), "missing required key 'id' in " + slot);
+  s.id = id.Scalar();
+  if (s.id.empty()) throw InputError(id.at, "'id' must not be empty");
+  for (const auto& prior : study_.samples)
+    if (prior.sample.id == s.id)
+      throw InputError(id.at, "duplicate sample id " + Quote(s.id) + " (first used at line " +
+                                  std::to_string(prior.sample.where.line) + ")");
+  const std::string what = "sample " + Quote(s.id);
+  auto require = [&](const Field& f) {
+    if (!f) throw InputError(m.at(), "missing required key " + Quote(f.key) + " in " + what);
+  };
+
+  require(lithology);
+  s.lithology = lithology.Scalar();
+
+  require(porosity);
+  {
+    const std::string& text = porosity.Scalar();
+    auto nt = SplitNumberUnit(text);
+    if (!nt) throw InputError(porosity.at, "porosity = " + Quote(text) + " is not a number");
+    double factor = 1;
+    if (!nt->unit.empty()) factor = UnitFactor(nt->unit, Quantity::kDimensionless, "porosity", porosity.at);
+    s.porosity = nt->value * factor;
+    if (!(std::isfinite(s.porosity) && s.porosity >= 0 && s.porosity < 1))
+      throw InputError(porosity.at, "porosity = " + text + " is outside [0, 1)");
+  }
+
+  require(density);
+  s.bulk_density = ParseQuantity(density, Quantity::kDensity);
+  if (!(s.bulk_density > 0))
+    throw InputError(density.at, "bulk_density = " + density.Scalar() + " must be > 0");
+
+  if (orientation)
+    s.orientation = ParseChoice<Orientation>(orientation, {{"vertical", Orientation::kVertical},
+                                                           {"horizontal", Orientation::kHorizontal},
+                                                           {"inclined", Orientation::kInclined},
+                                                           {"unknown", Orientation::kUnknown}});
+  require(measurement);
+  s.kind = ParseChoice<MeasurementKind>(
+      measurement, {{"static", MeasurementKind::kStatic}, {"dynamic", MeasurementKind::kDynamic}});
+  if (branch)
+    s.branch = ParseChoice<Branch>(branch, {{"loading", Branch::kLoading}, {"unloading", Branch::kUnloading}});
+  if (cycle) {
+    const long long c = cycle.Integer();
+    if (c < 1 || c > 1000000) throw InputError(cycle.at, "cycle = " + cycle.Scalar() + " must be >= 1");
+    s.cycle = static_cast<int>(c);
+  }
+  if (coefficient) {
+    s.effective_pressure_coefficient = coefficient.Number();
+    if (!(s.effective_pressure_coefficient >= 0 && s.effective_pressure_coefficient <= 2))
+      throw InputError(coefficient.at,
+                       "effective_pressure_coefficient = " + coefficient.Scalar() + " is outside [0, 2]");
+  }
+  std::optional<double> constant_pore;
+  if (pore_pressure) {
+    constant_pore = ParseQuantity(pore_pressure, Quantity::kPressure);
+    if (!(*constant_pore >= 0))
+      throw InputError(pore_pressure.at, "pore_pressure = " + pore_pressure.Scalar() + " must be >= 0");
+  }
+
+  // Uncertainties declared for the whole sample.
+  std::optional<Sigma> u_k, u_vp, u_vs, u_rho;
+  std::optional<bool> calibrated;
+  Field u_calibrated;
+  if (uncertainty) {
+    MapReader u(uncertainty.node, file_, "uncertainty of " + what, "uncertainty");
+    Field fk = u.Get("K"), fvp = u.Get("Vp"), fvs = u.Get("Vs"), frho = u.Get("rho");
+    u_calibrated = u.Get("calibrated");
+    u.Finish();
+    const bool dyn = s.kind == MeasurementKind::kDynamic;
+    for (const Field* f : {&fvp, &fvs, &frho})
+      if (*f && !dyn)
+        throw InputError(f->key_at, Quote(f->path) + " applies to dynamic samples only; " + what +
+                                        " is static (give uncertainty.K)");
+    if (fk && dyn)
+      throw InputError(fk.key_at, "'uncertainty.K' does not apply to dynamic " + what +
+                                      ": give Vp, Vs and rho uncertainties, K's is propagated");
+    if (fk) u_k = ParseSigma(fk, Quantity::kModulus);
+    if (fvp) u_vp = ParseSigma(fvp, Quantity::kVelocity);
+    if (fvs) u_vs = ParseSigma(fvs, Quantity::kVelocity);
+    if (frho) u_rho = ParseSigma(frho, Quantity::kDensity);
+    if (u_calibrated) calibrated = u_calibrated.Boolean();
+  }
+
+  // Data.
+  require(data);
+  std::array<std::optional<Column>, kNumRoles> columns;
+  std::vector<RawRow> rows = ReadData(data, what, columns);
+  const bool dyn = s.kind == MeasurementKind::kDynamic;
+  auto forbid = [&](Role r, const std::string& why) {
+    if (columns[r]) throw InputError(columns[r]->at, std::string("column '") + kRoles[r].name + "' " + why);
+  };
+  auto need = [&](Role r, const std::string& why) {
+    if (!columns[r])
+      throw InputError(data.at, "data of " + what + " needs a column '" + kRoles[r].name + "' " + why);
+  };
+  if (columns[kP]) {
+    forbid(kPc, "cannot be combined with a differential pressure column 'P'");
+    forbid(kPp, "cannot be combined with a differential pressure column 'P'");
+    if (coefficient)
+      throw InputError(coefficient.key_at, "effective_pressure_coefficient applies to P_c and P_p columns, but " +
+                                               what + " gives the differential pressure 'P' directly");
+    if (pore_pressure)
+      throw InputError(pore_pressure.key_at, "pore_pressure applies to a P_c column, but " + what +
+                                                 " gives the differential pressure 'P' directly");
+  } else {
+    need(kPc, "(confining pressure) or 'P' (differential pressure)");
+    if (columns[kPp] && pore_pressure)
+      throw InputError(pore_pressure.key_at, "pore_pressure is given both as a column 'P_p' and as a constant");
+  }
+  if (dyn) {
+    forbid(kK, "is for static samples; " + what + " is dynamic (K is computed from Vp, Vs and rho)");
+    forbid(kSigmaK, "is for static samples; dynamic K uncertainty is propagated from Vp, Vs and rho");
+    need(kVp, "(dynamic sample)");
+    need(kVs, "(dynamic sample)");
+  } else {
+    for (Role r : {kVp, kVs, kRho, kSigmaVp, kSigmaVs, kSigmaRho})
+      forbid(r, "is for dynamic samples; " + what + " is static");
+    need(kK, "(static bulk modulus)");
+  }
+  auto both = [&](Role r, const std::optional<Sigma>& u, const char* key) {
+    if (columns[r] && u)
+      throw InputError(columns[r]->at, std::string("column '") + kRoles[r].name + "' and 'uncertainty." + key +
+                                           "' both give this uncertainty; keep one");
+  };
+  both(kSigmaK, u_k, "K");
+  both(kSigmaVp, u_vp, "Vp");
+  both(kSigmaVs, u_vs, "Vs");
+  both(kSigmaRho, u_rho, "rho");
+  const bool has_sigma = u_k || u_vp || u_vs || u_rho || columns[kSigmaK] || columns[kSigmaVp] ||
+                         columns[kSigmaVs] || columns[kSigmaRho];
+  if (has_sigma && !calibrated)
+    throw InputError(uncertainty ? uncertainty.at : m.at(),
+                     what + " gives uncertainties but not 'uncertainty.calibrated' (true: the sigmas are absolute "
+                            "1-sigma errors and the covariance is not rescaled; false: they are relative weights)");
+  if (!has_sigma && calibrated)
+    throw InputError(u_calibrated.key_at, "'uncertainty.calibrated' is given but " + what + " has no uncertainties");
+
+  // Points.
+  const double n = s.effective_pressure_coefficient;
+  for (const RawRow& r : rows) {
+    DataPoint p;
+    p.where = r.where;
+    auto cell = [&](Role role) -> const Cell* { return r.cells[role] ? &*r.cells[role] : nullptr; };
+    auto nonnegative = [&](Role role) {
+      const Cell* c = cell(role);
+      if (c && !(c->value >= 0))
+        throw InputError(c->at, std::string(kRoles[role].name) + " = " + ShowCell(*c, *columns[role]) +
+                                    " is negative; pressures must be >= 0");
+    };
+    auto positive = [&](Role role) {
+      const Cell* c = cell(role);
+      if (c && !(c->value > 0))
+        throw InputError(c->at, std::string(kRoles[role].name) + " = " + ShowCell(*c, *columns[role]) + " must be > 0");
+    };
+    for (Role role : {kPc, kPp, kP}) nonnegative(role);
+    for (Role role : {kK, kVp, kVs, kRho, kSigmaK, kSigmaVp, kSigmaVs, kSigmaRho}) positive(role);
+    if (cell(kP)) {
+      p.pressure = cell(kP)->value;
+      p.confining = p.pressure;
+      p.pore = 0;
+    } else {
+      p.confining = cell(kPc)->value;
+      p.pore = cell(kPp) ? cell(kPp)->value : constant_pore.value_or(0.0);
+      p.pressure = p.confining - n * p.pore;
+      if (!(p.pressure >= 0))
+        throw InputError(r.where, "differential pressure P_c - n P_p = " + FormatNumber(p.pressure / 1e6) +
+                                      " MPa is negative (n = " + FormatNumber(n) + ")");
+    }
+    auto sigma_of = [&](Role col_role, const std::optional<Sigma>& u, double value) -> double {
+      if (const Cell* c = cell(col_role)) return columns[col_role]->relative ? c->value * std::fabs(value) : c->value;
+      return u ? u->Of(value) : 0.0;
+    };
+    if (!dyn) {
+      p.modulus = cell(kK)->value;
+      p.sigma = sigma_of(kSigmaK, u_k, p.modulus);
+    } else {
+      WaveData w;
+      w.vp = cell(kVp)->value;
+      w.vs = cell(kVs)->value;
+      w.rho = cell(kRho) ? cell(kRho)->value : s.bulk_density;
+      w.sigma_vp = sigma_of(kSigmaVp, u_vp, w.vp);
+      w.sigma_vs = sigma_of(kSigmaVs, u_vs, w.vs);
+      w.sigma_rho = sigma_of(kSigmaRho, u_rho, w.rho);
+      const double ratio = w.vp / w.vs;
+      if (!(ratio > kMinVpVsForPositiveBulk))
+        throw InputError(r.where, "Vp/Vs = " + FormatNumber(ratio) +
+                                      " must exceed sqrt(4/3) = 1.1547 (otherwise K < 0)");
+      const DynamicModuli dm = ComputeDynamicModuli(w);
+      if (ratio <= kMinVpVsForPositivePoisson)
+        Warn(r.where, what + ": Vp/Vs = " + FormatNumber(ratio) +
+                          " <= sqrt(2): Poisson ratio " + FormatNumber(dm.poisson) + " <= 0, unusual for rock");
+      p.modulus = dm.bulk;
+      p.sigma = has_sigma ? dm.sigma_bulk : 0.0;
+      p.waves = w;
+      p.dynamic = dm;
+    }
+    if (has_sigma && !(std::isfinite(p.sigma) && p.sigma > 0))
+      throw InputError(r.where, "uncertainty of K = " + FormatNumber(p.sigma / 1e9) + " GPa must be > 0");
+    s.points.push_back(std::move(p));
+  }
+  s.sigma_absolute = has_sigma && *calibrated;
+
+  // Models and fit options.
+  if (models) ss.models = ReadModels(models, file_, registry_);
+  else ss.models = default_models_;
+  if (ss.models.empty())
+    throw InputError(m.at(), what + " has no models: list them under 'models' here or in 'defaults'");
+  FitOptionsRead opts = defaults_fit_;
+  if (fit) {
+    FitOptionsRead own;
+    own.options = defaults_fit_.options;
+    own.scale_covariance = defaults_fit_.scale_covariance;
+    own.scale_covariance_at = defaults_fit_.scale_covariance_at;
+    ReadFitOptions(fit, file_, what, own);
+    opts = own;
+  }
+  ss.options = opts.options;
+  if (opts.scale_covariance) {
+    if (!*opts.scale_covariance && !has_sigma)
+      throw InputError(opts.scale_covariance_at, "scale_covariance = false needs calibrated uncertainties, but " +
+                                                     what + " has none");
+    if (!*opts.scale_covariance && !s.sigma_absolute)
+      throw InputError(opts.scale_covariance_at, "scale_covariance = false contradicts uncertainty.calibrated = "
+                                                 "false of " + what);
+    ss.options.scale_covariance = *opts.scale_covariance;
+  } else {
+    ss.options.scale_covariance = !s.sigma_absolute;
+  }
+  study_.samples.push_back(std::move(ss));
+}
+
+}  // namespace
+
+Study ParseStudy(std::string_view yaml_text, const std::string& path, const ModelRegistry& registry) {
+  Loader loader(path, registry);
+  return loader.Parse(yaml_text);
+}
+
+Study LoadStudy(const std::string& path, const ModelRegistry& registry) {
+  bool ok = false;
+  const std::string text = ReadWholeFile(path, ok);
+  if (!ok) throw InputError({path, 0, 0}, "cannot open study file " + Quote(path));
+  return ParseStudy(text, path, registry);
+}
+
+Study LoadStudy(const std::string& path) { return LoadStudy(path, ModelRegistry::Builtin()); }
+
+}  // namespace porofit

@@ -1,0 +1,123 @@
+#include "yaml_map.h"
+
+#include <cmath>
+
+#include "porofit/io/csv.h"
+
+namespace porofit::io::detail {
+
+SourceLocation Where(const std::string& file, const YAML::Mark& mark) {
+  if (mark.is_null()) return {file, 0, 0};
+  return {file, mark.line + 1, mark.column + 1};
+}
+
+std::string TypeName(const YAML::Node& node) {
+  switch (node.Type()) {
+    case YAML::NodeType::Map: return "a mapping";
+    case YAML::NodeType::Sequence: return "a list";
+    case YAML::NodeType::Scalar: return "a scalar";
+    case YAML::NodeType::Null:
+    case YAML::NodeType::Undefined: break;
+  }
+  return "nothing";
+}
+
+const std::string& Field::Scalar() const {
+  if (!node.IsScalar())
+    throw InputError(at, "'" + path + "' must be a single value, found " + TypeName(node));
+  return node.Scalar();
+}
+
+double Field::Number() const {
+  const std::string& text = Scalar();
+  double v = 0;
+  if (!csv::ParseNumber(text, v))
+    throw InputError(at, "'" + path + "' = '" + text + "' is not a number");
+  if (!std::isfinite(v)) throw InputError(at, "'" + path + "' = " + text + " is not finite");
+  return v;
+}
+
+long long Field::Integer() const {
+  const std::string& text = Scalar();
+  double v = 0;
+  if (!csv::ParseNumber(text, v) || !std::isfinite(v) || v != std::floor(v) || std::fabs(v) > 9e15)
+    throw InputError(at, "'" + path + "' = '" + text + "' is not a whole number");
+  return static_cast<long long>(v);
+}
+
+bool Field::Boolean() const {
+  const std::string& text = Scalar();
+  static const char* const kTrue[] = {"true", "True", "TRUE", "yes", "Yes", "on", "On"};
+  static const char* const kFalse[] = {"false", "False", "FALSE", "no", "No", "off", "Off"};
+  for (const char* t : kTrue)
+    if (text == t) return true;
+  for (const char* f : kFalse)
+    if (text == f) return false;
+  throw InputError(at, "'" + path + "' = '" + text + "' is not true or false");
+}
+
+void Field::ExpectList() const {
+  if (!node.IsSequence())
+    throw InputError(at, "'" + path + "' must be a list, found " + TypeName(node));
+}
+
+MapReader::MapReader(const YAML::Node& node, std::string file, std::string what, std::string prefix)
+    : file_(std::move(file)), what_(std::move(what)), prefix_(std::move(prefix)) {
+  at_ = Where(file_, node.Mark());
+  if (!node.IsMap())
+    throw InputError(at_, what_ + " must be a mapping of keys to values, found " + TypeName(node));
+  for (auto it = node.begin(); it != node.end(); ++it) {
+    Entry e;
+    const SourceLocation key_at = Where(file_, it->first.Mark());
+    if (!it->first.IsScalar())
+      throw InputError(key_at, "keys in " + what_ + " must be plain words");
+    e.key = it->first.Scalar();
+    for (const Entry& prior : entries_)
+      if (prior.key == e.key)
+        throw InputError(key_at, "duplicate key '" + e.key + "' in " + what_ + " (first given at line " +
+                                     std::to_string(prior.key_at.line) + ")");
+    e.value = it->second;
+    e.key_at = key_at;
+    e.value_at = e.value.IsNull() ? key_at : Where(file_, e.value.Mark());
+    entries_.push_back(std::move(e));
+  }
+}
+
+Field MapReader::Get(const std::string& key) {
+  asked_.push_back(key);
+  Field f;
+  f.key = key;
+  f.path = prefix_.empty() ? key : prefix_ + "." + key;
+  f.at = at_;
+  f.key_at = at_;
+  for (Entry& e : entries_) {
+    if (e.key != key) continue;
+    e.used = true;
+    f.node = e.value;
+    f.key_at = e.key_at;
+    f.at = e.value_at;
+    f.present = true;
+    break;
+  }
+  return f;
+}
+
+Field MapReader::Require(const std::string& key) {
+  Field f = Get(key);
+  if (!f) throw InputError(at_, "missing required key '" + f.path + "' in " + what_);
+  if (f.node.IsNull())
+    throw InputError(f.key_at, "'" + f.path + "' in " + what_ + " has no value");
+  return f;
+}
+
+void MapReader::Finish() const {
+  for (const Entry& e : entries_) {
+    if (e.used) continue;
+    std::string msg = "unknown key '" + e.key + "' in " + what_;
+    const std::string near = NearestWord(e.key, asked_);
+    if (!near.empty()) msg += "; did you mean '" + near + "'?";
+    throw InputError(e.key_at, msg);
+  }
+}
+
+}  // namespace porofit::io::detail

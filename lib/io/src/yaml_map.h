@@ -1,0 +1,73 @@
+#pragma once
+// Strict reading of YAML mappings: every key that is looked up is recorded,
+// and Finish() rejects the keys nobody asked for, with a suggestion. Values
+// carry their source location for messages.
+#include <yaml-cpp/yaml.h>
+
+#include <string>
+#include <vector>
+
+#include "porofit/core/error.h"
+
+namespace porofit::io::detail {
+
+/// yaml-cpp marks are zero-based.
+SourceLocation Where(const std::string& file, const YAML::Mark& mark);
+
+/// "a mapping", "a list", "a scalar", "nothing".
+std::string TypeName(const YAML::Node& node);
+
+/// One value looked up in a mapping.
+struct Field {
+  std::string key;        ///< the key as written
+  std::string path;       ///< for messages, e.g. "uncertainty.K"
+  YAML::Node node;        ///< the value (null node when written as "key:")
+  SourceLocation key_at;  ///< where the key is written
+  SourceLocation at;      ///< where the value is written (the key, for empty values)
+  bool present = false;
+  explicit operator bool() const { return present; }
+
+  /// The value as a scalar's text; throws for lists, mappings and empty values.
+  const std::string& Scalar() const;
+  /// The value as a finite number (plain YAML number, no unit).
+  double Number() const;
+  /// The value as an integer; throws for fractions and non-numbers.
+  long long Integer() const;
+  /// true/false (also yes/no, on/off as YAML 1.1 spells them).
+  bool Boolean() const;
+  /// Throws unless the value is a list.
+  void ExpectList() const;
+};
+
+class MapReader {
+ public:
+  /// `what` names the mapping in messages ("sample 'B-3'", "the study").
+  /// Throws InputError if `node` is not a mapping or repeats a key.
+  MapReader(const YAML::Node& node, std::string file, std::string what, std::string prefix = "");
+
+  /// Looks `key` up and marks it as read; an absent key gives !field.
+  Field Get(const std::string& key);
+  /// Like Get, but throws "missing required key" when absent.
+  Field Require(const std::string& key);
+  /// Throws for the first key that was never looked up.
+  void Finish() const;
+
+  const SourceLocation& at() const { return at_; }
+  const std::string& file() const { return file_; }
+  const std::string& what() const { return what_; }
+
+ private:
+  struct Entry {
+    std::string key;
+    YAML::Node value;
+    SourceLocation key_at;
+    SourceLocation value_at;
+    bool used = false;
+  };
+  std::vector<Entry> entries_;
+  std::vector<std::string> asked_;
+  std::string file_, what_, prefix_;
+  SourceLocation at_;
+};
+
+}  // namespace porofit::io::detail
