@@ -12,6 +12,9 @@
 //     mu_HS+/- = Gamma(zeta(K_max, mu_max) / zeta(K_min, mu_min)),
 //       Gamma(z) = [sum f_i/(mu_i + z)]^-1 - z,  zeta(K, mu) = (mu/6)(9K + 8mu)/(K + 2mu)
 //   with the extremes taken over constituents with f_i > 0. R <= HS- <= HS+ <= V.
+//   Hill is not guaranteed to lie inside the HS bounds: for quartz-calcite
+//   80/20 it is 43.119 GPa against HS+ 42.972 GPa (domain brief §8 check 9).
+//   Hill is still the central value (domain brief §4); the bounds are reported.
 //
 // XRD reports weight fractions; volume fractions follow from the mineral
 // densities: v_i = (w_i/rho_i) / sum_j (w_j/rho_j).
