@@ -1,0 +1,250 @@
+// porofit: fit crack-closure models to a study's plugs and write the report.
+//
+//   porofit fit STUDY.yaml --out DIR [--overwrite] [--threads N] [--quiet]
+//   porofit check STUDY.yaml
+//   porofit models
+//
+// Exit status: 0 success; 2 bad input (study file, data, command line, output
+// location); 3 internal error. A fit that does not converge is a result, not
+// an error. Environment: POROFIT_FIXED_TIMESTAMP (ISO-8601 UTC,
+// "YYYY-MM-DDThh:mm:ssZ") replaces the run's start time in every output, so
+// that runs can be compared byte for byte.
+#include <boost/program_options.hpp>
+
+#include <cstdlib>
+#include <filesystem>
+#include <iostream>
+#include <regex>
+#include <string>
+#include <vector>
+
+#include "porofit/core/error.h"
+#include "porofit/io/study_loader.h"
+#include "porofit/models/describe.h"
+#include "porofit/models/registry.h"
+#include "porofit/report/report.h"
+#include "porofit/run/run.h"
+#include "porofit/version.h"
+
+namespace po = boost::program_options;
+
+namespace {
+
+constexpr int kExitOk = 0;
+constexpr int kExitInput = 2;
+constexpr int kExitInternal = 3;
+
+const char* kUsage =
+    "usage: porofit <command> [options]\n"
+    "\n"
+    "commands:\n"
+    "  fit STUDY.yaml --out DIR   fit every model to every sample and write the report folder\n"
+    "  check STUDY.yaml           validate a study file without fitting\n"
+    "  models                     print the model catalogue\n"
+    "\n"
+    "options:\n"
+    "  -h [ --help ]              show this help (or a command's: porofit fit --help)\n"
+    "  --version                  print the version\n"
+    "\n"
+    "Results are decision support only; they must be reviewed by qualified engineers.\n";
+
+// A usage problem the user can fix; message is printed after "porofit: error: ".
+struct UsageError {
+  std::string message;
+};
+
+std::string ShellQuote(const std::string& a) {
+  if (!a.empty() && a.find_first_not_of("abcdefghijklmnopqrstuvwxyzABCDEFGHIJKLMNOPQRSTUVWXYZ0123456789-_./=:+,@%") ==
+                        std::string::npos) {
+    return a;
+  }
+  std::string q = "'";
+  for (char c : a) q += c == '\'' ? std::string("'\\''") : std::string(1, c);
+  return q + "'";
+}
+
+std::string CommandLine(int argc, char** argv) {
+  std::string s;
+  for (int i = 0; i < argc; ++i) {
+    if (i) s += ' ';
+    s += ShellQuote(argv[i]);
+  }
+  return s;
+}
+
+po::variables_map Parse(const std::vector<std::string>& args, const po::options_description& opts,
+                        const po::positional_options_description& pos) {
+  po::variables_map vm;
+  po::store(po::command_line_parser(args).options(opts).positional(pos).run(), vm);
+  po::notify(vm);
+  return vm;
+}
+
+std::string FixedTimestamp() {
+  const char* env = std::getenv("POROFIT_FIXED_TIMESTAMP");
+  if (env == nullptr || *env == '\0') return {};
+  static const std::regex kIso(R"(\d{4}-\d{2}-\d{2}T\d{2}:\d{2}:\d{2}Z)");
+  if (!std::regex_match(env, kIso)) {
+    throw UsageError{"POROFIT_FIXED_TIMESTAMP = '" + std::string(env) +
+                     "' is not an ISO-8601 UTC time like 2026-01-31T12:00:00Z"};
+  }
+  return env;
+}
+
+int CmdFit(const std::vector<std::string>& args, const std::string& command_line) {
+  po::options_description opts("porofit fit STUDY.yaml --out DIR [options]");
+  std::string study_path, out_dir;
+  int threads = 1;
+  opts.add_options()
+      ("help,h", "show this help")
+      ("out,o", po::value<std::string>(&out_dir)->required(), "output folder to create (must not exist)")
+      ("overwrite", "replace the output folder if it exists (atomically)")
+      ("threads,j", po::value<int>(&threads)->default_value(1), "worker threads over samples (>= 1); output does not depend on it")
+      ("quiet,q", "print no summary, only errors");
+  po::options_description hidden;
+  hidden.add_options()("study", po::value<std::string>(&study_path)->required(), "study file");
+  po::options_description all;
+  all.add(opts).add(hidden);
+  po::positional_options_description pos;
+  pos.add("study", 1);
+
+  // --help must work without the required arguments.
+  for (const std::string& a : args) {
+    if (a == "--help" || a == "-h") {
+      std::cout << opts << "\nWrites summary.txt, parameters.csv, fits.csv, residuals.csv and results.json\n"
+                              "(see docs/outputs.md). Nothing is written when loading fails.\n";
+      return kExitOk;
+    }
+  }
+  const po::variables_map vm = Parse(args, all, pos);
+  if (threads < 1) throw UsageError{"--threads = " + std::to_string(threads) + " must be at least 1"};
+  const bool overwrite = vm.count("overwrite") > 0;
+  const bool quiet = vm.count("quiet") > 0;
+  const std::string timestamp = FixedTimestamp();
+
+  // Fail before fitting if the folder is in the way (checked again when writing).
+  std::error_code ec;
+  if (!overwrite && std::filesystem::exists(std::filesystem::symlink_status(out_dir, ec))) {
+    throw porofit::OutputError("output folder '" + out_dir + "' already exists; pass --overwrite to replace it");
+  }
+
+  const porofit::Study study = porofit::LoadStudy(study_path);
+  porofit::RunOptions ro;
+  ro.threads = threads;
+  ro.command_line = command_line;
+  ro.timestamp_utc = timestamp;
+  const porofit::StudyRun run = porofit::RunStudy(study, ro);
+
+  porofit::AtomicFolderOptions fo;
+  fo.overwrite = overwrite;
+  porofit::WriteReportFolder(run, out_dir, fo);
+
+  if (!quiet) {
+    porofit::WriteSummary(run, std::cout);
+    std::cout << "\nwrote";
+    const auto names = porofit::ReportFileNames();
+    for (size_t i = 0; i < names.size(); ++i) std::cout << (i ? ", " : " ") << names[i];
+    std::cout << " to " << out_dir << "\n";
+  }
+  return kExitOk;
+}
+
+int CmdCheck(const std::vector<std::string>& args) {
+  po::options_description opts("porofit check STUDY.yaml");
+  std::string study_path;
+  opts.add_options()("help,h", "show this help");
+  po::options_description hidden;
+  hidden.add_options()("study", po::value<std::string>(&study_path)->required(), "study file");
+  po::options_description all;
+  all.add(opts).add(hidden);
+  po::positional_options_description pos;
+  pos.add("study", 1);
+  for (const std::string& a : args) {
+    if (a == "--help" || a == "-h") {
+      std::cout << opts << "\nLoads and validates the study and its data files; fits nothing, writes nothing.\n";
+      return kExitOk;
+    }
+  }
+  Parse(args, all, pos);
+  const porofit::Study study = porofit::LoadStudy(study_path);
+  size_t n_fits = 0, n_points = 0;
+  for (const porofit::StudySample& s : study.samples) {
+    n_fits += s.models.size();
+    n_points += s.sample.points.size();
+  }
+  std::cout << study_path << ": ok - study \"" << study.name << "\", " << study.samples.size() << " samples, "
+            << n_points << " data points, " << n_fits << " fits requested, " << study.inputs.size()
+            << " input files\n";
+  for (const porofit::StudySample& s : study.samples) {
+    std::cout << "  " << s.sample.id << ": " << porofit::ToString(s.sample.kind) << ", "
+              << porofit::ToString(s.sample.branch) << ", cycle " << s.sample.cycle << ", "
+              << s.sample.points.size() << " points; models:";
+    for (const porofit::ModelChoice& m : s.models) std::cout << " " << m.model_id;
+    std::cout << "\n";
+  }
+  for (const std::string& w : study.warnings) std::cout << w << "\n";
+  const std::string invented = porofit::InventedNotice(study);
+  if (!invented.empty()) std::cout << invented << "\n";
+  return kExitOk;
+}
+
+int CmdModels(const std::vector<std::string>& args) {
+  po::options_description opts("porofit models");
+  opts.add_options()("help,h", "show this help");
+  const po::variables_map vm = Parse(args, opts, {});
+  if (vm.count("help")) {
+    std::cout << opts << "\nPrints every model: formula, parameters with units and bounds, reference.\n";
+    return kExitOk;
+  }
+  std::cout << porofit::DescribeCatalogue(porofit::ModelRegistry::Builtin());
+  return kExitOk;
+}
+
+}  // namespace
+
+int main(int argc, char** argv) {
+  try {
+    if (argc < 2) {
+      std::cerr << kUsage;
+      return kExitInput;
+    }
+    const std::string cmd = argv[1];
+    if (cmd == "--help" || cmd == "-h" || cmd == "help") {
+      std::cout << kUsage;
+      return kExitOk;
+    }
+    if (cmd == "--version") {
+      std::cout << "porofit " << porofit::kVersion << "\n";
+      return kExitOk;
+    }
+    const std::vector<std::string> rest(argv + 2, argv + argc);
+    if (cmd == "fit") return CmdFit(rest, CommandLine(argc, argv));
+    if (cmd == "check") return CmdCheck(rest);
+    if (cmd == "models") return CmdModels(rest);
+    const std::vector<std::string> commands = {"fit", "check", "models"};
+    std::string hint = porofit::NearestWord(cmd, commands);
+    if (cmd.rfind("-", 0) == 0) {
+      throw UsageError{"unknown option '" + cmd + "' (expected a command: fit, check or models)"};
+    }
+    throw UsageError{"unknown command '" + cmd + "'" + (hint.empty() ? "" : " (did you mean '" + hint + "'?)") +
+                     "; commands: fit, check, models"};
+  } catch (const UsageError& e) {
+    std::cerr << "porofit: error: " << e.message << "\n";
+    return kExitInput;
+  } catch (const po::error& e) {
+    std::cerr << "porofit: error: " << e.what() << " (see porofit " << (argc > 1 ? argv[1] : "") << " --help)\n";
+    return kExitInput;
+  } catch (const porofit::InputError& e) {
+    std::cerr << e.what() << "\n";
+    return kExitInput;
+  } catch (const porofit::OutputError& e) {
+    std::cerr << "porofit: error: " << e.what() << "\n";
+    return kExitInput;
+  } catch (const std::exception& e) {
+    std::cerr << "porofit: internal error: " << e.what() << "\n";
+    return kExitInternal;
+  } catch (...) {
+    std::cerr << "porofit: internal error: unknown exception\n";
+    return kExitInternal;
+  }
+}

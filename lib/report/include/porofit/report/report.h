@@ -1,0 +1,88 @@
+#pragma once
+// Rendering a StudyRun: parameter, fit-statistic and residual tables (CSV), a
+// complete JSON record with provenance, and a terminal summary.
+//
+// Every writer takes a std::ostream& so tests see exactly what users see.
+// Units: the data types are SI; tables show parameters in each model's
+// working unit (ParameterResult::unit, e.g. GPa, MPa, 1/GPa), pressures in MPa
+// and moduli in GPa, with the unit in the column name where one unit serves a
+// whole column and in a `unit` column where it varies by row. Numbers are
+// written in shortest round-trip form; a number that was not computed (NaN) is
+// an empty CSV field and JSON null. File layouts: docs/outputs.md.
+//
+// Every CSV starts with '#' comment lines (read with e.g. pandas
+// `comment='#'`) and the JSON with a "caution" field: decision support only,
+// review by qualified engineers, local regulations and operator standards
+// govern; plus a notice when the study's data are invented.
+#include <cstdint>
+#include <filesystem>
+#include <ostream>
+#include <string>
+#include <vector>
+
+#include <nlohmann/json.hpp>
+
+#include "porofit/models/registry.h"
+#include "porofit/report/output_folder.h"
+#include "porofit/run/run.h"
+
+namespace porofit {
+
+/// Version of the JSON layout; bumped when a field changes meaning or goes away.
+inline constexpr int kResultsSchemaVersion = 1;
+
+/// An input file with its digest, for provenance.
+struct InputDigest {
+  std::string path;
+  std::string role;        ///< "study" or "data"
+  std::string sha256;      ///< lower-case hex
+  std::uint64_t size_bytes = 0;
+};
+
+/// SHA-256 of every Study::inputs entry, in order. Throws InputError if a file
+/// cannot be read.
+std::vector<InputDigest> DigestInputs(const Study& study);
+
+struct ReportOptions {
+  /// Catalogue for model titles, formulas and references. nullptr: Builtin().
+  const ModelRegistry* registry = nullptr;
+};
+
+/// The caution sentence printed at the top of every output.
+std::string CautionText();
+/// True if the study declares its data invented: the word "invented" appears
+/// (any case) in its name or description. The sample study does.
+bool IsInventedStudy(const Study& study);
+/// The notice printed when IsInventedStudy(); empty otherwise.
+std::string InventedNotice(const Study& study);
+
+/// parameters.csv: one row per (sample, model, parameter).
+void WriteParametersCsv(const StudyRun& run, std::ostream& out);
+/// fits.csv: one row per (sample, model): statistics, flags, status.
+void WriteFitsCsv(const StudyRun& run, std::ostream& out);
+/// residuals.csv: one row per (sample, model, data point) for fits that
+/// produced residuals.
+void WriteResidualsCsv(const StudyRun& run, std::ostream& out);
+
+/// results.json as a value (ordered keys). NaN and infinities become null
+/// when dumped.
+nlohmann::ordered_json ResultsJson(const StudyRun& run, const std::vector<InputDigest>& inputs,
+                                   const ReportOptions& options = {});
+void WriteResultsJson(const StudyRun& run, const std::vector<InputDigest>& inputs, std::ostream& out,
+                      const ReportOptions& options = {});
+
+/// The terminal summary: a fixed-width table per sample (model, status, RMSE,
+/// AICc, flags, parameters +/- 1 SE), notes for flagged or failed fits, the
+/// lowest-AICc model, and the caution lines.
+void WriteSummary(const StudyRun& run, std::ostream& out);
+
+/// Names of the files WriteReportFolder() creates, in writing order.
+std::vector<std::string> ReportFileNames();
+
+/// Digests the inputs and writes every report file into `folder` atomically
+/// (WriteFolderAtomically). Throws OutputError / InputError; on failure no
+/// partial folder remains.
+void WriteReportFolder(const StudyRun& run, const std::filesystem::path& folder,
+                       const AtomicFolderOptions& folder_options = {}, const ReportOptions& options = {});
+
+}  // namespace porofit

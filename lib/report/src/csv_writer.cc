@@ -1,0 +1,119 @@
+#include <cmath>
+
+#include "format.h"
+#include "porofit/core/units.h"
+#include "porofit/report/report.h"
+
+namespace porofit {
+using detail::CsvField;
+using detail::CsvRow;
+using detail::Num;
+
+namespace {
+
+// Statistics are meaningful only where the solver ran to an answer.
+bool HasStatistics(const FitResult& r) {
+  return r.status == FitStatus::kConverged || r.status == FitStatus::kMaxIterations;
+}
+
+std::vector<std::string> SampleFields(const Sample& s) {
+  return {CsvField(s.id), CsvField(s.lithology), std::string(ToString(s.kind)), std::string(ToString(s.branch)),
+          std::to_string(s.cycle)};
+}
+
+std::string AtBound(const ParameterResult& p) {
+  if (p.fixed) return {};
+  if (p.at_lower && p.at_upper) return "both";
+  if (p.at_lower) return "lower";
+  if (p.at_upper) return "upper";
+  return {};
+}
+
+}  // namespace
+
+void WriteParametersCsv(const StudyRun& run, std::ostream& out) {
+  out << detail::CsvPreamble(
+      "fitted parameters, one row per sample, model and parameter", run.study, run.metadata.started_utc,
+      run.metadata.tool_version,
+      {"estimate, std_error, lower and upper are in the row's unit (the model's working unit); "
+       "std_error is 1 standard error (0 for fixed parameters); blank = not computed; "
+       "rel_std_error_percent = 100 std_error/|estimate|; at_bound = lower|upper when the estimate sits on a bound"});
+  out << "sample,lithology,kind,branch,cycle,model,status,parameter,unit,estimate,std_error,"
+         "rel_std_error_percent,lower,upper,fixed,at_bound\n";
+  for (size_t i = 0; i < run.study.samples.size() && i < run.samples.size(); ++i) {
+    const Sample& s = run.study.samples[i].sample;
+    for (const FitResult& r : run.samples[i].fits) {
+      const bool has = HasStatistics(r);
+      for (const ParameterResult& p : r.parameters) {
+        const double f = p.si_factor;
+        std::vector<std::string> row = SampleFields(s);
+        const double est = has ? p.estimate / f : std::nan("");
+        const double se = has ? p.std_error / f : std::nan("");
+        row.insert(row.end(),
+                   {CsvField(r.model_id), std::string(ToString(r.status)), CsvField(p.name), CsvField(p.unit),
+                    Num(est), Num(se), Num(detail::RelativeErrorPercent(est, se)), Num(p.lower / f),
+                    Num(p.upper / f), p.fixed ? "true" : "false", has ? AtBound(p) : std::string()});
+        out << CsvRow(row);
+      }
+    }
+  }
+}
+
+void WriteFitsCsv(const StudyRun& run, std::ostream& out) {
+  out << detail::CsvPreamble(
+      "fit statistics, one row per sample and model", run.study, run.metadata.started_utc,
+      run.metadata.tool_version,
+      {"ssr = sum of squared weighted residuals, in ssr_unit (1 when every point has a sigma, GPa^2 when "
+       "unweighted); chi2_reduced = ssr/dof; rmse_GPa from raw residuals; aic, aicc, bic from the Gaussian "
+       "log-likelihood; flags separated by ';' (see docs/outputs.md); blank = not computed"});
+  out << "sample,lithology,kind,branch,cycle,model,status,n,p,dof,ssr,ssr_unit,chi2_reduced,rmse_GPa,"
+         "r_squared,aic,aicc,bic,max_abs_correlation,flags,message,iterations,starts,starts_converged\n";
+  for (size_t i = 0; i < run.study.samples.size() && i < run.samples.size(); ++i) {
+    const StudySample& ss = run.study.samples[i];
+    const bool weighted = IsWeighted(ss.sample);
+    for (const FitResult& r : run.samples[i].fits) {
+      const bool has = HasStatistics(r);
+      auto stat = [&](double v) { return has ? Num(v) : std::string(); };
+      std::vector<std::string> row = SampleFields(ss.sample);
+      row.insert(row.end(),
+                 {CsvField(r.model_id), std::string(ToString(r.status)), std::to_string(r.n), std::to_string(r.p),
+                  std::to_string(r.dof), stat(r.ssr), weighted ? "1" : "GPa^2", stat(r.chi2_reduced),
+                  stat(r.rmse / units::kGPa), stat(r.r_squared), stat(r.aic), stat(r.aicc), stat(r.bic),
+                  has && r.covariance_ok ? Num(r.max_abs_correlation) : std::string(),
+                  CsvField(detail::Join(detail::FitFlags(r, ss.options), ";")), CsvField(r.message),
+                  std::to_string(r.iterations), std::to_string(r.starts_tried), std::to_string(r.starts_converged)});
+      out << CsvRow(row);
+    }
+  }
+}
+
+void WriteResidualsCsv(const StudyRun& run, std::ostream& out) {
+  out << detail::CsvPreamble(
+      "residuals, one row per sample, model and data point", run.study, run.metadata.started_utc,
+      run.metadata.tool_version,
+      {"pressure_MPa is the differential pressure P = P_c - n P_p; residual_GPa = observed - fitted; "
+       "standardized_residual is internally studentised (residual / (s sigma sqrt(1 - leverage))); "
+       "sigma_K_GPa blank when the data carry no uncertainty; point = 1-based index in the sample's data"});
+  out << "sample,model,point,location,pressure_MPa,observed_K_GPa,fitted_K_GPa,sigma_K_GPa,residual_GPa,"
+         "standardized_residual,leverage\n";
+  for (size_t i = 0; i < run.study.samples.size() && i < run.samples.size(); ++i) {
+    const Sample& s = run.study.samples[i].sample;
+    const bool weighted = IsWeighted(s);
+    for (const FitResult& r : run.samples[i].fits) {
+      if (!HasStatistics(r)) continue;
+      const ResidualDiagnostics& d = r.residuals;
+      const std::vector<int> point = detail::ResidualToPoint(r, s);
+      for (Eigen::Index k = 0; k < d.x.size(); ++k) {
+        const int j = point[static_cast<size_t>(k)];
+        auto at = [&](const Eigen::VectorXd& v) { return k < v.size() ? v[k] : std::nan(""); };
+        out << CsvRow({CsvField(s.id), CsvField(r.model_id), j >= 0 ? std::to_string(j + 1) : std::string(),
+                       j >= 0 ? CsvField(s.points[static_cast<size_t>(j)].where.ToString()) : std::string(),
+                       Num(at(d.x) / units::kMPa), Num(at(d.observed) / units::kGPa), Num(at(d.fitted) / units::kGPa),
+                       weighted ? Num(at(d.sigma) / units::kGPa) : std::string(), Num(at(d.raw) / units::kGPa),
+                       Num(at(d.standardized)), Num(at(d.leverage))});
+      }
+    }
+  }
+}
+
+}  // namespace porofit

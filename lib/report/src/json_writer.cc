@@ -1,0 +1,308 @@
+#include <cmath>
+
+#include "format.h"
+#include "porofit/core/units.h"
+#include "porofit/report/report.h"
+
+namespace porofit {
+namespace {
+
+using Json = nlohmann::ordered_json;
+
+// nlohmann dumps non-finite doubles as null; spelling it out keeps the rule
+// visible and covers values stored before dumping.
+Json Number(double v) { return std::isfinite(v) ? Json(v) : Json(nullptr); }
+
+bool HasStatistics(const FitResult& r) {
+  return r.status == FitStatus::kConverged || r.status == FitStatus::kMaxIterations;
+}
+
+Json OptionsJson(const FitOptions& o) {
+  Json j;
+  j["loss"] = std::string(ToString(o.loss));
+  j["loss_scale_sigma"] = Number(o.loss_scale);
+  j["multistart"] = o.multistart;
+  j["start_spread"] = Number(o.start_spread);
+  j["seed"] = o.seed;
+  j["max_iterations"] = o.max_iterations;
+  j["function_tolerance"] = Number(o.function_tolerance);
+  j["gradient_tolerance"] = Number(o.gradient_tolerance);
+  j["parameter_tolerance"] = Number(o.parameter_tolerance);
+  j["covariance"] = o.covariance;
+  j["scale_covariance"] = o.scale_covariance;
+  j["min_reciprocal_condition"] = Number(o.min_reciprocal_condition);
+  j["correlation_threshold"] = Number(o.correlation_threshold);
+  j["closure_range_factor"] = Number(o.closure_range_factor);
+  j["unit"] = "1 (all dimensionless; loss_scale in multiples of sigma)";
+  return j;
+}
+
+// Working-unit factor of a parameter, from the fit result or the catalogue.
+double ParameterFactor(const FitResult& r, const ModelSpec* spec, const std::string& name, std::string* unit) {
+  for (const ParameterResult& p : r.parameters) {
+    if (p.name == name) {
+      *unit = p.unit;
+      return p.si_factor;
+    }
+  }
+  if (spec != nullptr) {
+    const int k = spec->ParameterIndex(name);
+    if (k >= 0) {
+      *unit = spec->parameters[static_cast<size_t>(k)].unit;
+      return spec->parameters[static_cast<size_t>(k)].si_factor;
+    }
+  }
+  *unit = "SI";
+  return 1.0;
+}
+
+Json SettingsJson(const ModelChoice& c, const FitResult& r, const ModelSpec* spec) {
+  Json j = Json::object();
+  for (const auto& [name, s] : c.settings) {
+    std::string unit;
+    const double f = ParameterFactor(r, spec, name, &unit);
+    Json e;
+    e["unit"] = unit;
+    if (s.fixed) e["fixed"] = Number(*s.fixed / f);
+    if (s.lower) e["lower"] = Number(*s.lower / f);
+    if (s.upper) e["upper"] = Number(*s.upper / f);
+    if (s.start) e["start"] = Number(*s.start / f);
+    if (s.free) e["free"] = true;
+    j[name] = e;
+  }
+  return j;
+}
+
+Json DataJson(const Sample& s) {
+  Json arr = Json::array();
+  for (size_t i = 0; i < s.points.size(); ++i) {
+    const DataPoint& p = s.points[i];
+    Json d;
+    d["point"] = i + 1;
+    d["location"] = p.where.ToString();
+    d["confining_MPa"] = Number(p.confining / units::kMPa);
+    d["pore_MPa"] = Number(p.pore / units::kMPa);
+    d["pressure_MPa"] = Number(p.pressure / units::kMPa);
+    d["K_GPa"] = Number(p.modulus / units::kGPa);
+    d["sigma_K_GPa"] = p.sigma > 0 ? Number(p.sigma / units::kGPa) : Json(nullptr);
+    if (p.waves) {
+      const WaveData& w = *p.waves;
+      d["waves"] = {{"vp_m_per_s", Number(w.vp)},           {"vs_m_per_s", Number(w.vs)},
+                    {"density_kg_per_m3", Number(w.rho)},    {"sigma_vp_m_per_s", Number(w.sigma_vp)},
+                    {"sigma_vs_m_per_s", Number(w.sigma_vs)}, {"sigma_density_kg_per_m3", Number(w.sigma_rho)}};
+    }
+    if (p.dynamic) {
+      const DynamicModuli& m = *p.dynamic;
+      d["dynamic"] = {{"K_GPa", Number(m.bulk / units::kGPa)},
+                      {"shear_GPa", Number(m.shear / units::kGPa)},
+                      {"poisson_ratio", Number(m.poisson)},
+                      {"sigma_K_GPa", Number(m.sigma_bulk / units::kGPa)},
+                      {"sigma_shear_GPa", Number(m.sigma_shear / units::kGPa)},
+                      {"vp_vs_ratio", Number(m.vp_vs)},
+                      {"negative_bulk", m.negative_bulk},
+                      {"negative_poisson", m.negative_poisson}};
+    }
+    arr.push_back(d);
+  }
+  return arr;
+}
+
+Json MatrixJson(const Eigen::MatrixXd& m, const std::vector<double>& scale) {
+  Json rows = Json::array();
+  for (Eigen::Index i = 0; i < m.rows(); ++i) {
+    Json row = Json::array();
+    for (Eigen::Index j = 0; j < m.cols(); ++j) {
+      const double s = scale.empty() ? 1.0 : scale[static_cast<size_t>(i)] * scale[static_cast<size_t>(j)];
+      row.push_back(Number(m(i, j) / s));
+    }
+    rows.push_back(row);
+  }
+  return rows;
+}
+
+Json FitJson(const StudySample& ss, const ModelChoice& choice, const FitResult& r, const ModelRegistry& registry) {
+  const ModelSpec* spec = registry.Find(r.model_id);
+  const bool has = HasStatistics(r);
+  const bool weighted = IsWeighted(ss.sample);
+  Json j;
+  j["model"] = r.model_id;
+  if (spec) {
+    j["model_name"] = spec->name;
+    j["formula"] = spec->formula;
+    j["reference"] = spec->reference;
+    j["x"] = {{"symbol", spec->x_symbol}, {"unit", spec->x_unit}, {"si_factor", spec->x_si_factor}};
+    j["y"] = {{"symbol", spec->y_symbol}, {"unit", spec->y_unit}, {"si_factor", spec->y_si_factor}};
+  }
+  j["status"] = std::string(ToString(r.status));
+  j["converged"] = r.status == FitStatus::kConverged;
+  j["message"] = r.message;
+  j["iterations"] = r.iterations;
+  j["starts_tried"] = r.starts_tried;
+  j["starts_converged"] = r.starts_converged;
+  j["settings"] = SettingsJson(choice, r, spec);
+  if (choice.where.known()) j["requested_at"] = choice.where.ToString();
+
+  Json params = Json::array();
+  for (const ParameterResult& p : r.parameters) {
+    const double f = p.si_factor;
+    const double est = has ? p.estimate / f : std::nan("");
+    const double se = has ? p.std_error / f : std::nan("");
+    Json e;
+    e["name"] = p.name;
+    e["unit"] = p.unit;
+    e["si_factor"] = Number(f);
+    e["estimate"] = Number(est);
+    e["std_error"] = Number(se);
+    e["rel_std_error_percent"] = Number(detail::RelativeErrorPercent(est, se));
+    e["start"] = Number(p.start / f);
+    e["lower"] = Number(p.lower / f);
+    e["upper"] = Number(p.upper / f);
+    e["fixed"] = p.fixed;
+    e["at_lower"] = p.at_lower;
+    e["at_upper"] = p.at_upper;
+    params.push_back(e);
+  }
+  j["parameters"] = params;
+
+  // Covariance and correlation over the free parameters, in working units.
+  Json names = Json::array(), punits = Json::array();
+  std::vector<double> scale;
+  for (int k : r.free_index) {
+    if (k < 0 || k >= static_cast<int>(r.parameters.size())) continue;
+    const ParameterResult& p = r.parameters[static_cast<size_t>(k)];
+    names.push_back(p.name);
+    punits.push_back(p.unit);
+    scale.push_back(p.si_factor);
+  }
+  const bool cov_shape_ok = r.covariance.rows() == static_cast<Eigen::Index>(scale.size()) &&
+                            r.covariance.cols() == static_cast<Eigen::Index>(scale.size());
+  j["covariance"] = {{"available", r.covariance_ok && has && cov_shape_ok},
+                     {"method", r.covariance_method},
+                     {"scaled_by_residual_variance", r.covariance_scaled},
+                     {"parameters", names},
+                     {"units", punits},
+                     {"entry_unit", "units[i]*units[j]"},
+                     {"matrix", cov_shape_ok && has ? MatrixJson(r.covariance, scale) : Json::array()}};
+  const bool corr_shape_ok = r.correlation.rows() == static_cast<Eigen::Index>(scale.size()) &&
+                             r.correlation.cols() == static_cast<Eigen::Index>(scale.size());
+  j["correlation"] = {{"parameters", names},
+                      {"unit", "1"},
+                      {"matrix", corr_shape_ok && has ? MatrixJson(r.correlation, {}) : Json::array()}};
+
+  auto stat = [&](double v) { return has ? Number(v) : Json(nullptr); };
+  j["statistics"] = {{"n", r.n},
+                     {"p", r.p},
+                     {"dof", r.dof},
+                     {"ssr", stat(r.ssr)},
+                     {"ssr_unit", weighted ? "1" : "GPa^2"},
+                     {"chi2_reduced", stat(r.chi2_reduced)},
+                     {"chi2_reduced_unit", weighted ? "1" : "GPa^2"},
+                     {"rmse_GPa", stat(r.rmse / units::kGPa)},
+                     {"r_squared", stat(r.r_squared)},
+                     {"aic", stat(r.aic)},
+                     {"aicc", stat(r.aicc)},
+                     {"bic", stat(r.bic)},
+                     {"max_abs_correlation", has && r.covariance_ok ? Number(r.max_abs_correlation) : Json(nullptr)},
+                     {"unit", "1 unless named"}};
+  j["flags"] = {{"rank_deficient", r.rank_deficient},
+                {"high_correlation", r.high_correlation},
+                {"closure_outside_range", r.closure_outside_range},
+                {"list", detail::FitFlags(r, ss.options)}};
+  j["warnings"] = r.warnings;
+
+  const ResidualDiagnostics& d = r.residuals;
+  Json res;
+  Json points = Json::array();
+  if (has) {
+    const std::vector<int> map = detail::ResidualToPoint(r, ss.sample);
+    for (Eigen::Index k = 0; k < d.x.size(); ++k) {
+      auto at = [&](const Eigen::VectorXd& v) { return k < v.size() ? v[k] : std::nan(""); };
+      const int pt = map[static_cast<size_t>(k)];
+      points.push_back({{"point", pt >= 0 ? Json(pt + 1) : Json(nullptr)},
+                        {"pressure_MPa", Number(at(d.x) / units::kMPa)},
+                        {"observed_K_GPa", Number(at(d.observed) / units::kGPa)},
+                        {"fitted_K_GPa", Number(at(d.fitted) / units::kGPa)},
+                        {"sigma_K_GPa", weighted ? Number(at(d.sigma) / units::kGPa) : Json(nullptr)},
+                        {"residual_GPa", Number(at(d.raw) / units::kGPa)},
+                        {"standardized_residual", Number(at(d.standardized))},
+                        {"leverage", Number(at(d.leverage))}});
+    }
+  }
+  res["points"] = points;
+  res["runs_test"] = {{"runs", has ? Json(d.runs) : Json(nullptr)},
+                      {"n_positive", has ? Json(d.n_positive) : Json(nullptr)},
+                      {"n_negative", has ? Json(d.n_negative) : Json(nullptr)},
+                      {"z", stat(d.runs_z)},
+                      {"p_value", stat(d.runs_p)},
+                      {"note", "Wald-Wolfowitz runs test on residual signs; normal approximation, weak when n < 10"}};
+  res["durbin_watson"] = stat(d.durbin_watson);
+  j["residuals"] = res;
+  return j;
+}
+
+}  // namespace
+
+Json ResultsJson(const StudyRun& run, const std::vector<InputDigest>& inputs, const ReportOptions& options) {
+  const ModelRegistry& registry = options.registry ? *options.registry : ModelRegistry::Builtin();
+  Json j;
+  j["caution"] = CautionText();
+  if (IsInventedStudy(run.study)) j["invented_data"] = InventedNotice(run.study);
+  j["schema"] = "porofit-results";
+  j["schema_version"] = kResultsSchemaVersion;
+
+  Json prov;
+  prov["tool"] = "porofit";
+  prov["tool_version"] = run.metadata.tool_version;
+  prov["build_type"] = run.metadata.build_type;
+  prov["started_utc"] = run.metadata.started_utc;
+  prov["command_line"] = run.metadata.command_line;
+  prov["threads"] = run.metadata.threads;
+  Json files = Json::array();
+  for (const InputDigest& f : inputs) {
+    files.push_back({{"path", f.path}, {"role", f.role}, {"sha256", f.sha256}, {"size_bytes", f.size_bytes}});
+  }
+  prov["input_files"] = files;
+  prov["loader_warnings"] = run.study.warnings;
+  j["provenance"] = prov;
+
+  j["study"] = {{"name", run.study.name}, {"description", run.study.description}, {"path", run.study.path}};
+
+  Json samples = Json::array();
+  for (size_t i = 0; i < run.study.samples.size(); ++i) {
+    const StudySample& ss = run.study.samples[i];
+    const Sample& s = ss.sample;
+    Json js;
+    js["id"] = s.id;
+    js["lithology"] = s.lithology;
+    js["location"] = s.where.ToString();
+    js["porosity_fraction"] = Number(s.porosity);
+    js["bulk_density_kg_per_m3"] = Number(s.bulk_density);
+    js["orientation"] = std::string(ToString(s.orientation));
+    js["kind"] = std::string(ToString(s.kind));
+    js["branch"] = std::string(ToString(s.branch));
+    js["cycle"] = s.cycle;
+    js["effective_pressure_coefficient"] = Number(s.effective_pressure_coefficient);
+    js["sigma_absolute"] = s.sigma_absolute;
+    js["weighted"] = IsWeighted(s);
+    js["options"] = OptionsJson(ss.options);
+    js["data"] = DataJson(s);
+    Json fits = Json::array();
+    if (i < run.samples.size()) {
+      const auto& results = run.samples[i].fits;
+      for (size_t k = 0; k < results.size() && k < ss.models.size(); ++k) {
+        fits.push_back(FitJson(ss, ss.models[k], results[k], registry));
+      }
+    }
+    js["fits"] = fits;
+    samples.push_back(js);
+  }
+  j["samples"] = samples;
+  return j;
+}
+
+void WriteResultsJson(const StudyRun& run, const std::vector<InputDigest>& inputs, std::ostream& out,
+                      const ReportOptions& options) {
+  out << ResultsJson(run, inputs, options).dump(2, ' ', false, nlohmann::ordered_json::error_handler_t::replace) << "\n";
+}
+
+}  // namespace porofit
