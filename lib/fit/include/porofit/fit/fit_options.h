@@ -3,6 +3,7 @@
 // default; Validate() names the first field that breaks its rule.
 #include <cstdint>
 #include <string>
+#include <string_view>
 
 namespace porofit {
 
@@ -12,6 +13,16 @@ enum class RobustLoss {
   kCauchy,  ///< rho(s) = c^2 log(1 + s/c^2): strongly down-weights outliers
 };
 std::string_view ToString(RobustLoss l);
+
+/// How the covariance of the estimates is computed at the solution. Both work
+/// on the column-equilibrated weighted Jacobian (so the rank test does not
+/// depend on parameter units) and agree to rounding; a rank-deficient problem
+/// falls back to the Eigen pseudo-inverse either way.
+enum class CovarianceBackend {
+  kCeres,  ///< ceres::Covariance, DENSE_SVD ("ceres-dense-svd")
+  kEigen,  ///< SVD of the Jacobian with Eigen ("eigen-svd"), no second Ceres problem
+};
+std::string_view ToString(CovarianceBackend b);
 
 struct FitOptions {
   /// Robust loss on the standardised residuals r_i/sigma_i. Standard errors
@@ -35,8 +46,11 @@ struct FitOptions {
   int max_iterations = 500;
   /// Ceres convergence tolerances (relative cost change, scaled gradient
   /// max-norm, relative step). Tight by default: small fits are cheap, and the
-  /// defaults of the solver give only about 6 correct digits.
-  double function_tolerance = 1e-14;
+  /// defaults of the solver give only about 6 correct digits. The relative
+  /// cost change 1e-16 (about one rounding step) rather than 1e-14: at 1e-14
+  /// the solver stops early in flat valleys (NIST StRD ENSO, b8 then has only
+  /// 5.8 correct digits; 6.6 at 1e-16, measured).
+  double function_tolerance = 1e-16;
   double gradient_tolerance = 1e-14;
   double parameter_tolerance = 1e-16;
 
@@ -45,7 +59,10 @@ struct FitOptions {
   /// Scale the covariance by s^2 = SSR/(n-p). The loader sets this false when
   /// a sample's uncertainties are declared absolute. chi^2_nu is always reported.
   bool scale_covariance = true;
-  /// Reciprocal condition number below which J^T W J counts as rank deficient.
+  /// Which implementation computes the covariance (see CovarianceBackend).
+  CovarianceBackend covariance_backend = CovarianceBackend::kCeres;
+  /// Reciprocal condition number below which J^T W J (columns equilibrated)
+  /// counts as rank deficient.
   double min_reciprocal_condition = 1e-14;
 
   /// Identifiability flags: |correlation| above this is flagged. In (0, 1].

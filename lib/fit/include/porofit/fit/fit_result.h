@@ -59,7 +59,10 @@ struct FitResult {
   Eigen::MatrixXd correlation;  ///< same order
   std::vector<int> free_index;  ///< model-parameter index of each covariance row
   bool covariance_ok = false;
-  std::string covariance_method;  ///< "ceres-dense-svd" or "eigen-pseudo-inverse" (fallback) or ""
+  /// "ceres-dense-svd" or "eigen-svd" (FitOptions::covariance_backend), or
+  /// "eigen-pseudo-inverse" (fallback when the primary fails or J is rank
+  /// deficient), or "" when not computed.
+  std::string covariance_method;
   bool covariance_scaled = true;  ///< multiplied by s^2
 
   int n = 0;              ///< data points

@@ -1,0 +1,786 @@
+#include "porofit/fit/fitter.h"
+
+#include <ceres/ceres.h>
+
+#include <Eigen/SVD>
+#include <algorithm>
+#include <cmath>
+#include <exception>
+#include <limits>
+#include <memory>
+#include <numeric>
+#include <random>
+#include <utility>
+
+#include "porofit/core/error.h"
+#include "porofit/fit/diagnostics.h"
+
+namespace porofit {
+namespace {
+
+constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+constexpr double kInf = std::numeric_limits<double>::infinity();
+
+// Everything the solver needs, in the model's working units. Built once per
+// Fit() call from the request; never shared between calls.
+struct Setup {
+  const ModelSpec* model = nullptr;
+  int n = 0;          // data points
+  int np = 0;         // model parameters
+  int nf = 0;         // free parameters = solver coordinates
+  Eigen::VectorXd x, y, sigma;  // working units
+  std::vector<double> lower, upper;  // working units, per model parameter
+  std::vector<bool> fixed;
+  std::vector<double> fixed_value;   // working units, valid where fixed
+  std::vector<std::optional<double>> user_start;  // working units
+  std::vector<bool> log;             // solver works on ln(theta)
+  std::vector<int> free_index;       // model index of each solver coordinate
+};
+
+// theta (working) from solver coordinates u.
+void ToTheta(const Setup& s, const double* u, double* theta) {
+  for (int j = 0; j < s.np; ++j)
+    if (s.fixed[j]) theta[j] = s.fixed_value[j];
+  for (int k = 0; k < s.nf; ++k) {
+    const int j = s.free_index[k];
+    theta[j] = s.log[j] ? std::exp(u[k]) : u[k];
+  }
+}
+
+void ToSolver(const Setup& s, const double* theta, double* u) {
+  for (int k = 0; k < s.nf; ++k) {
+    const int j = s.free_index[k];
+    u[k] = s.log[j] ? std::log(theta[j]) : theta[j];
+  }
+}
+
+// Weighted residuals r_i = (y_i - f(x_i)) / sigma_i of points [first, first +
+// count), with the exact Jacobian from the model's value_and_gradient, chained
+// through the log transform (dtheta/du = theta). Plain least squares uses one
+// block for all n points. A robust loss needs one block per point, because
+// Ceres applies the loss to the squared norm of a whole block. Scratch buffers
+// are per instance: one instance belongs to one Fit() call, and the solver
+// runs single-threaded.
+class WeightedResiduals final : public ceres::CostFunction {
+ public:
+  WeightedResiduals(const Setup& s, int first, int count)
+      : s_(s), first_(first), count_(count), theta_(s.np), grad_(s.np) {
+    set_num_residuals(count);
+    mutable_parameter_block_sizes()->push_back(s.nf);
+  }
+  explicit WeightedResiduals(const Setup& s) : WeightedResiduals(s, 0, s.n) {}
+
+  bool Evaluate(double const* const* parameters, double* residuals, double** jacobians) const override {
+    try {
+      return EvaluateAt(parameters[0], residuals, jacobians != nullptr ? jacobians[0] : nullptr);
+    } catch (const std::exception& e) {
+      if (error_.empty()) error_ = std::string("model threw: ") + e.what();
+      return false;
+    } catch (...) {
+      if (error_.empty()) error_ = "model threw an unknown exception";
+      return false;
+    }
+  }
+
+  // Row-major jacobian (n x nf) when non-null.
+  bool EvaluateAt(const double* u, double* residuals, double* jacobian) const {
+    ToTheta(s_, u, theta_.data());
+    const ModelSpec& m = *s_.model;
+    for (int t = 0; t < count_; ++t) {
+      const int i = first_ + t;
+      const double inv_sigma = 1.0 / s_.sigma[i];
+      double f;
+      if (jacobian != nullptr) {
+        f = m.value_and_gradient(theta_.data(), s_.x[i], grad_.data());
+        double* row = jacobian + static_cast<std::ptrdiff_t>(t) * s_.nf;
+        for (int k = 0; k < s_.nf; ++k) {
+          const int j = s_.free_index[k];
+          const double d = s_.log[j] ? grad_[j] * theta_[j] : grad_[j];
+          row[k] = -d * inv_sigma;
+          if (!std::isfinite(row[k])) return false;
+        }
+      } else {
+        f = m.value ? m.value(theta_.data(), s_.x[i]) : m.value_and_gradient(theta_.data(), s_.x[i], grad_.data());
+      }
+      residuals[t] = (s_.y[i] - f) * inv_sigma;
+      if (!std::isfinite(residuals[t])) return false;
+    }
+    return true;
+  }
+
+  const std::string& error() const { return error_; }
+
+ private:
+  const Setup& s_;
+  int first_, count_;
+  mutable std::vector<double> theta_, grad_;
+  mutable std::string error_;
+};
+
+std::string ParamLabel(const ModelSpec& m, int j) { return m.parameters[j].name; }
+
+// "value unit" of a working-unit value shown in SI.
+std::string Si(double working, double factor, const char* unit) {
+  return FormatNumber(working * factor) + " " + unit;
+}
+
+FitResult Invalid(FitResult r, FitStatus status, std::string message) {
+  r.status = status;
+  r.message = std::move(message);
+  return r;
+}
+
+// Validates the request and converts it to working units. Returns an empty
+// string on success, otherwise the reason.
+std::string Prepare(const FitRequest& req, Setup& s, FitStatus& status) {
+  status = FitStatus::kInvalidRequest;
+  const ModelSpec& m = *req.model;
+  if (!m.value_and_gradient) return "model " + m.id + " has no value_and_gradient";
+  if (!(m.x_si_factor > 0) || !(m.y_si_factor > 0)) return "model " + m.id + " has a non-positive unit factor";
+  const FitData& d = req.data;
+  if (d.x.size() != d.y.size())
+    return "data have " + std::to_string(d.x.size()) + " x values but " + std::to_string(d.y.size()) + " y values";
+  if (!d.sigma.empty() && d.sigma.size() != d.y.size())
+    return "data have " + std::to_string(d.y.size()) + " y values but " + std::to_string(d.sigma.size()) +
+           " sigma values";
+  s.model = &m;
+  s.n = static_cast<int>(d.x.size());
+  s.np = static_cast<int>(m.parameters.size());
+  s.x.resize(s.n);
+  s.y.resize(s.n);
+  s.sigma.resize(s.n);
+  for (int i = 0; i < s.n; ++i) {
+    const std::string at = "data point " + std::to_string(i + 1) + ": ";
+    if (!std::isfinite(d.x[i])) return at + "x = " + FormatNumber(d.x[i]) + " is not finite";
+    if (!std::isfinite(d.y[i])) return at + "y = " + FormatNumber(d.y[i]) + " is not finite";
+    if (m.requires_positive_x && !(d.x[i] > 0))
+      return at + "x = " + FormatNumber(d.x[i]) + " violates x > 0 (model " + m.id + " is undefined at x <= 0)";
+    s.x[i] = d.x[i] / m.x_si_factor;
+    s.y[i] = d.y[i] / m.y_si_factor;
+    if (d.sigma.empty()) {
+      s.sigma[i] = 1.0;
+    } else {
+      if (!(std::isfinite(d.sigma[i]) && d.sigma[i] > 0))
+        return at + "sigma = " + FormatNumber(d.sigma[i]) + " violates sigma > 0";
+      s.sigma[i] = d.sigma[i] / m.y_si_factor;
+    }
+  }
+
+  // Settings by name; an unknown name is a typo to report, not to ignore.
+  std::vector<const ParameterSetting*> setting(s.np, nullptr);
+  for (const auto& [name, value] : req.settings) {
+    int j = -1;
+    for (int k = 0; k < s.np; ++k)
+      if (m.parameters[k].name == name) j = k;
+    if (j < 0) {
+      std::vector<std::string> names;
+      for (const auto& p : m.parameters) names.push_back(p.name);
+      std::string msg = "setting for unknown parameter '" + name + "' of model " + m.id;
+      const std::string near = NearestWord(name, names);
+      if (!near.empty()) msg += " (did you mean '" + near + "'?)";
+      return msg;
+    }
+    setting[j] = &value;
+  }
+
+  s.lower.resize(s.np);
+  s.upper.resize(s.np);
+  s.fixed.assign(s.np, false);
+  s.fixed_value.assign(s.np, kNaN);
+  s.user_start.assign(s.np, std::nullopt);
+  s.log.assign(s.np, false);
+  for (int j = 0; j < s.np; ++j) {
+    const ParameterSpec& ps = m.parameters[j];
+    const ParameterSetting* st = setting[j];
+    const double f = ps.si_factor;
+    const char* unit = "(SI)";
+    const std::string who = ps.name + ": ";
+    s.log[j] = ps.transform == ParameterTransform::kLog;
+    s.lower[j] = ps.lower;
+    s.upper[j] = ps.upper;
+    if (st != nullptr) {
+      if (st->lower) {
+        if (std::isnan(*st->lower)) return who + "lower = nan is not a number";
+        s.lower[j] = *st->lower / f;
+      }
+      if (st->upper) {
+        if (std::isnan(*st->upper)) return who + "upper = nan is not a number";
+        s.upper[j] = *st->upper / f;
+      }
+    }
+    if (s.log[j]) s.lower[j] = std::max(s.lower[j], 0.0);  // ln(theta) keeps theta > 0 anyway
+    s.fixed[j] = ps.fixed_by_default && !(st != nullptr && st->free);
+    if (st != nullptr && st->fixed) {
+      if (!std::isfinite(*st->fixed)) return who + "fixed value " + FormatNumber(*st->fixed) + " is not finite";
+      s.fixed[j] = true;
+      s.fixed_value[j] = *st->fixed / f;
+    }
+    if (st != nullptr && st->start) {
+      if (!std::isfinite(*st->start)) return who + "start = " + FormatNumber(*st->start) + " is not finite";
+      s.user_start[j] = *st->start / f;
+    }
+    if (s.fixed[j]) {
+      if (std::isnan(s.fixed_value[j]) && s.user_start[j]) s.fixed_value[j] = *s.user_start[j];
+      if (!std::isnan(s.fixed_value[j]) &&
+          !(s.fixed_value[j] >= s.lower[j] && s.fixed_value[j] <= s.upper[j]))
+        return who + "fixed value " + Si(s.fixed_value[j], f, unit) + " is outside its bounds [" +
+               Si(s.lower[j], f, unit) + ", " + Si(s.upper[j], f, unit) + "]";
+      // Fixed parameters need no transform; the value may sit on a bound.
+      s.log[j] = false;
+    } else {
+      if (!(s.lower[j] < s.upper[j]))
+        return who + "lower = " + Si(s.lower[j], f, unit) + " is not below upper = " + Si(s.upper[j], f, unit);
+      if (s.user_start[j] && !(*s.user_start[j] >= s.lower[j] && *s.user_start[j] <= s.upper[j]))
+        return who + "start = " + Si(*s.user_start[j], f, unit) + " is outside its bounds [" +
+               Si(s.lower[j], f, unit) + ", " + Si(s.upper[j], f, unit) + "]";
+      if (s.log[j] && s.user_start[j] && !(*s.user_start[j] > 0))
+        return who + "start = " + Si(*s.user_start[j], f, unit) + " violates start > 0 (fitted as a logarithm)";
+      s.free_index.push_back(j);
+    }
+  }
+  s.nf = static_cast<int>(s.free_index.size());
+
+  for (size_t k = 0; k < req.extra_starts.size(); ++k) {
+    const std::vector<double>& e = req.extra_starts[k];
+    const std::string at = "extra start " + std::to_string(k + 1) + ": ";
+    if (static_cast<int>(e.size()) != s.np)
+      return at + "has " + std::to_string(e.size()) + " values, model " + m.id + " has " + std::to_string(s.np) +
+             " parameters";
+    for (int j = 0; j < s.np; ++j) {
+      if (s.fixed[j]) continue;
+      if (!std::isfinite(e[j]) || e[j] < s.lower[j] || e[j] > s.upper[j] || (s.log[j] && !(e[j] > 0)))
+        return at + m.parameters[j].name + " = " + FormatNumber(e[j]) + " " + m.parameters[j].unit +
+               " is outside its bounds or not finite";
+    }
+  }
+  if (req.only_extra_starts && req.extra_starts.empty()) return "only_extra_starts is set but no extra start was given";
+
+  if (s.n < s.nf || s.n == 0) {
+    status = FitStatus::kTooFewPoints;
+    return std::to_string(s.n) + " data points violate n >= p = " + std::to_string(s.nf) + " free parameters";
+  }
+  return {};
+}
+
+// Moves theta strictly inside [lower, upper] (towards `base` where possible):
+// heuristic and perturbed starts must be feasible for the solver.
+double IntoBounds(double t, double base, double lo, double hi, bool log) {
+  if (log && !(t > 0)) t = base > 0 ? base : (hi < kInf ? 0.5 * hi : 1.0);
+  if (t >= lo && t <= hi && (!log || t > 0)) return t;
+  const double b = std::clamp(base, lo, hi);
+  if (t < lo) return (b > lo) ? lo + 0.5 * (b - lo) : lo;
+  return (b < hi) ? hi - 0.5 * (hi - b) : hi;
+}
+
+struct Run {
+  std::vector<double> start;  // theta, working
+  std::vector<double> u;      // solution, solver coordinates
+  double cost = kInf;
+  ceres::TerminationType termination = ceres::FAILURE;
+  int iterations = 0;
+  std::string message;
+};
+
+FitStatus StatusOf(ceres::TerminationType t) {
+  switch (t) {
+    case ceres::CONVERGENCE: return FitStatus::kConverged;
+    case ceres::NO_CONVERGENCE: return FitStatus::kMaxIterations;
+    default: return FitStatus::kNumericalFailure;
+  }
+}
+
+bool Usable(ceres::TerminationType t) { return t == ceres::CONVERGENCE || t == ceres::NO_CONVERGENCE; }
+
+std::unique_ptr<ceres::LossFunction> MakeLoss(const FitOptions& opt) {
+  // Ceres' rho(s) acts on s = r^2; HuberLoss(a) and CauchyLoss(a) bend at
+  // |r| = a, so a = loss_scale is in sigma units as FitOptions documents.
+  switch (opt.loss) {
+    case RobustLoss::kHuber: return std::make_unique<ceres::HuberLoss>(opt.loss_scale);
+    case RobustLoss::kCauchy: return std::make_unique<ceres::CauchyLoss>(opt.loss_scale);
+    case RobustLoss::kNone: break;
+  }
+  return nullptr;
+}
+
+ceres::Problem::Options BorrowingProblemOptions() {
+  ceres::Problem::Options po;
+  po.cost_function_ownership = ceres::DO_NOT_TAKE_OWNERSHIP;
+  po.loss_function_ownership = ceres::DO_NOT_TAKE_OWNERSHIP;
+  return po;
+}
+
+// Covariance of the solver coordinates u, unscaled (no s^2), from the
+// weighted Jacobian J (n x nf) at the solution.
+struct CovarianceOut {
+  Eigen::MatrixXd cov_u;
+  int rank = 0;
+  bool ok = false;
+  std::string method;
+};
+
+// Column equilibration: the rank / condition test must not depend on the
+// units of the parameters (NIST Misra1b: columns differ by 1e6, and J^T J of
+// the raw columns looks singular at a reciprocal condition of 1e-14).
+Eigen::VectorXd ColumnScales(const Eigen::MatrixXd& J) {
+  Eigen::VectorXd c(J.cols());
+  for (Eigen::Index k = 0; k < J.cols(); ++k) {
+    const double norm = J.col(k).norm();
+    c(k) = norm > 0 && std::isfinite(norm) ? 1.0 / norm : 1.0;
+  }
+  return c;
+}
+
+// (J^T J)^+ from the SVD of the equilibrated Jacobian J C: Cov = C V S^-2 V^T C,
+// dropping singular values with (s_k / s_max)^2 below min_rcond (rank deficient).
+CovarianceOut EigenCovariance(const Eigen::MatrixXd& J, double min_rcond) {
+  CovarianceOut out;
+  const Eigen::VectorXd c = ColumnScales(J);
+  const Eigen::MatrixXd Js = J * c.asDiagonal();
+  Eigen::JacobiSVD<Eigen::MatrixXd> svd(Js, Eigen::ComputeThinV);
+  const Eigen::VectorXd& sv = svd.singularValues();
+  Eigen::VectorXd inv2 = Eigen::VectorXd::Zero(J.cols());
+  for (Eigen::Index k = 0; k < sv.size(); ++k) {
+    const double ratio = sv(0) > 0 ? sv(k) / sv(0) : 0.0;
+    if (ratio * ratio >= min_rcond) {
+      inv2(k) = 1.0 / (sv(k) * sv(k));
+      ++out.rank;
+    }
+  }
+  out.cov_u = c.asDiagonal() * (svd.matrixV() * inv2.asDiagonal() * svd.matrixV().transpose()) * c.asDiagonal();
+  out.ok = out.rank == J.cols() && out.cov_u.allFinite();
+  out.method = "eigen-svd";
+  return out;
+}
+
+// Presents a cost function to Ceres in column-scaled coordinates v = u / c.
+class ColumnScaled final : public ceres::CostFunction {
+ public:
+  ColumnScaled(const ceres::CostFunction& inner, const Eigen::VectorXd& c) : inner_(inner), c_(c), u_(c.size()) {
+    set_num_residuals(inner.num_residuals());
+    mutable_parameter_block_sizes()->push_back(static_cast<int>(c.size()));
+  }
+  bool Evaluate(double const* const* parameters, double* residuals, double** jacobians) const override {
+    for (Eigen::Index k = 0; k < c_.size(); ++k) u_[k] = c_(k) * parameters[0][k];
+    const double* up = u_.data();
+    if (!inner_.Evaluate(&up, residuals, jacobians)) return false;
+    if (jacobians != nullptr && jacobians[0] != nullptr) {
+      const Eigen::Index nf = c_.size();
+      for (int i = 0; i < num_residuals(); ++i)
+        for (Eigen::Index k = 0; k < nf; ++k) jacobians[0][i * nf + k] *= c_(k);
+    }
+    return true;
+  }
+
+ private:
+  const ceres::CostFunction& inner_;
+  Eigen::VectorXd c_;
+  mutable std::vector<double> u_;
+};
+
+// ceres::Covariance (DENSE_SVD) at the solution, in the same equilibrated
+// coordinates as EigenCovariance, so its rank test is unit-independent.
+CovarianceOut CeresCovariance(const Setup& s, const Eigen::MatrixXd& Jc, const double* u_star,
+                              ceres::LossFunction* loss, double min_rcond) {
+  CovarianceOut out;
+  out.method = "ceres-dense-svd";
+  const Eigen::VectorXd c = ColumnScales(Jc);
+  std::vector<double> v(s.nf);
+  for (int k = 0; k < s.nf; ++k) v[k] = u_star[k] / c(k);
+  ceres::Problem problem(BorrowingProblemOptions());
+  std::vector<std::unique_ptr<WeightedResiduals>> inner;
+  std::vector<std::unique_ptr<ColumnScaled>> scaled;
+  const int blocks = loss ? s.n : 1;
+  for (int b = 0; b < blocks; ++b) {
+    inner.push_back(loss ? std::make_unique<WeightedResiduals>(s, b, 1) : std::make_unique<WeightedResiduals>(s));
+    scaled.push_back(std::make_unique<ColumnScaled>(*inner.back(), c));
+    problem.AddResidualBlock(scaled.back().get(), loss, v.data());
+  }
+  ceres::Covariance::Options co;
+  co.algorithm_type = ceres::DENSE_SVD;
+  co.min_reciprocal_condition_number = min_rcond;
+  co.null_space_rank = 0;
+  co.apply_loss_function = true;
+  co.num_threads = 1;
+  ceres::Covariance covariance(co);
+  const std::vector<std::pair<const double*, const double*>> pairs{{v.data(), v.data()}};
+  if (!covariance.Compute(pairs, &problem)) return out;
+  Eigen::Matrix<double, Eigen::Dynamic, Eigen::Dynamic, Eigen::RowMajor> cv(s.nf, s.nf);
+  if (!covariance.GetCovarianceBlock(v.data(), v.data(), cv.data()) || !cv.allFinite()) return out;
+  out.cov_u = c.asDiagonal() * Eigen::MatrixXd(cv) * c.asDiagonal();
+  out.rank = s.nf;
+  out.ok = true;
+  return out;
+}
+
+}  // namespace
+
+FitResult Fit(const FitRequest& req) {
+  FitResult r;
+  if (req.model == nullptr) return Invalid(r, FitStatus::kInvalidRequest, "fit request has no model");
+  const ModelSpec& m = *req.model;
+  const FitOptions& opt = req.options;
+  r.model_id = m.id;
+  r.covariance_scaled = opt.scale_covariance;
+  if (std::string bad = opt.Validate(); !bad.empty()) return Invalid(r, FitStatus::kInvalidRequest, bad);
+
+  Setup s;
+  FitStatus prep_status;
+  if (std::string bad = Prepare(req, s, prep_status); !bad.empty()) return Invalid(r, prep_status, bad);
+
+  // Parameter records (filled further below).
+  r.parameters.resize(s.np);
+  for (int j = 0; j < s.np; ++j) {
+    const ParameterSpec& ps = m.parameters[j];
+    ParameterResult& q = r.parameters[j];
+    q.name = ps.name;
+    q.unit = ps.unit;
+    q.si_factor = ps.si_factor;
+    q.fixed = s.fixed[j];
+    q.lower = s.lower[j] * ps.si_factor;
+    q.upper = s.upper[j] * ps.si_factor;
+  }
+  r.n = s.n;
+  r.p = s.nf;
+  r.dof = s.n - s.nf;
+  r.free_index = s.free_index;
+
+  // ---- starting points: extra starts, then the heuristic, then perturbations of the heuristic.
+  std::vector<std::vector<double>> starts = req.extra_starts;
+  std::vector<double> heuristic;
+  std::string heuristic_error;
+  if (!req.only_extra_starts) {
+    if (m.start) {
+      try {
+        std::vector<double> xs(s.x.data(), s.x.data() + s.n), ys(s.y.data(), s.y.data() + s.n);
+        heuristic = m.start(xs, ys);
+        if (static_cast<int>(heuristic.size()) != s.np) {
+          heuristic_error = "start heuristic returned " + std::to_string(heuristic.size()) + " values";
+          heuristic.clear();
+        }
+      } catch (const std::exception& e) {
+        heuristic_error = std::string("start heuristic threw: ") + e.what();
+        heuristic.clear();
+      }
+    } else {
+      heuristic_error = "model has no start heuristic";
+    }
+  }
+  // A fixed_by_default parameter without a value takes the heuristic's (else the first start's).
+  for (int j = 0; j < s.np; ++j) {
+    if (!s.fixed[j] || !std::isnan(s.fixed_value[j])) continue;
+    if (!heuristic.empty() && std::isfinite(heuristic[j])) {
+      s.fixed_value[j] = heuristic[j];
+    } else if (!starts.empty()) {
+      s.fixed_value[j] = starts.front()[j];
+    } else {
+      return Invalid(r, FitStatus::kInvalidRequest, m.parameters[j].name + " is fixed but has no value or start");
+    }
+    if (!(s.fixed_value[j] >= s.lower[j] && s.fixed_value[j] <= s.upper[j]))
+      return Invalid(r, FitStatus::kInvalidRequest, m.parameters[j].name + ": fixed value from the start is outside its bounds");
+  }
+  auto complete = [&](std::vector<double> t, const std::vector<double>& base, bool clamp) {
+    for (int j = 0; j < s.np; ++j) {
+      if (s.fixed[j]) {
+        t[j] = s.fixed_value[j];
+        continue;
+      }
+      if (s.user_start[j]) t[j] = *s.user_start[j];
+      if (clamp) t[j] = IntoBounds(t[j], base[j], s.lower[j], s.upper[j], s.log[j]);
+    }
+    return t;
+  };
+  for (auto& e : starts) e = complete(e, e, false);
+  if (!req.only_extra_starts) {
+    std::vector<double> base;
+    if (!heuristic.empty()) {
+      bool finite = true;
+      for (double v : heuristic) finite = finite && std::isfinite(v);
+      if (finite) {
+        // Centre of the box as the "base" when clamping a heuristic value that fell outside it.
+        std::vector<double> centre(s.np);
+        for (int j = 0; j < s.np; ++j) {
+          const double lo = s.lower[j], hi = s.upper[j];
+          centre[j] = std::isfinite(lo) && std::isfinite(hi) ? 0.5 * (lo + hi)
+                      : std::isfinite(lo) ? (s.log[j] ? std::max(2 * lo, 1.0) : lo + 1)
+                      : std::isfinite(hi) ? hi - 1 : 0.0;
+          if (s.user_start[j]) centre[j] = *s.user_start[j];
+        }
+        base = complete(heuristic, centre, true);
+        starts.push_back(base);
+      } else {
+        heuristic_error = "start heuristic returned a non-finite value";
+      }
+    }
+    if (base.empty() && !starts.empty()) base = starts.front();
+    if (base.empty())
+      return Invalid(r, FitStatus::kInvalidRequest, "no starting point: " + heuristic_error);
+    std::mt19937_64 rng(opt.seed);
+    std::normal_distribution<double> normal(0.0, 1.0);
+    for (int k = 1; k < opt.multistart; ++k) {
+      std::vector<double> t = base;
+      for (int j = 0; j < s.np; ++j) {
+        if (s.fixed[j] || s.user_start[j]) continue;
+        const double z = normal(rng);
+        if (s.log[j] || (s.lower[j] >= 0 && base[j] > 0)) {
+          t[j] = base[j] * std::exp(opt.start_spread * z);
+        } else {
+          t[j] = base[j] + opt.start_spread * std::max(std::abs(base[j]), 1.0) * z;
+        }
+        t[j] = IntoBounds(t[j], base[j], s.lower[j], s.upper[j], s.log[j]);
+      }
+      starts.push_back(std::move(t));
+    }
+  }
+
+  // ---- the solver problem: one parameter block of free coordinates; one residual
+  // block for plain least squares, one per point under a robust loss.
+  WeightedResiduals cost(s);
+  std::unique_ptr<ceres::LossFunction> loss = MakeLoss(opt);
+  std::vector<std::unique_ptr<WeightedResiduals>> point_costs;
+
+  std::vector<double> u(std::max(s.nf, 1));
+  std::vector<double> theta(s.np);
+  ceres::Problem problem(BorrowingProblemOptions());
+  if (s.nf > 0) {
+    if (loss) {
+      for (int i = 0; i < s.n; ++i) {
+        point_costs.push_back(std::make_unique<WeightedResiduals>(s, i, 1));
+        problem.AddResidualBlock(point_costs.back().get(), loss.get(), u.data());
+      }
+    } else {
+      problem.AddResidualBlock(&cost, nullptr, u.data());
+    }
+    for (int k = 0; k < s.nf; ++k) {
+      const int j = s.free_index[k];
+      double lo = s.lower[j], hi = s.upper[j];
+      if (s.log[j]) {
+        lo = lo > 0 ? std::log(lo) : -kInf;
+        hi = hi < kInf ? std::log(hi) : kInf;
+      }
+      if (std::isfinite(lo)) problem.SetParameterLowerBound(u.data(), k, lo);
+      if (std::isfinite(hi)) problem.SetParameterUpperBound(u.data(), k, hi);
+    }
+  }
+  auto model_error = [&]() -> std::string {
+    if (!cost.error().empty()) return cost.error();
+    for (const auto& c : point_costs)
+      if (!c->error().empty()) return c->error();
+    return {};
+  };
+
+  ceres::Solver::Options so;
+  so.minimizer_type = ceres::TRUST_REGION;
+  so.trust_region_strategy_type = ceres::LEVENBERG_MARQUARDT;
+  so.linear_solver_type = ceres::DENSE_QR;
+  so.logging_type = ceres::SILENT;
+  so.minimizer_progress_to_stdout = false;
+  so.max_num_iterations = opt.max_iterations;
+  so.function_tolerance = opt.function_tolerance;
+  so.gradient_tolerance = opt.gradient_tolerance;
+  so.parameter_tolerance = opt.parameter_tolerance;
+  so.num_threads = 1;
+
+  Run best;
+  for (const std::vector<double>& st : starts) {
+    Run run;
+    run.start = st;
+    r.starts_tried += 1;
+    if (s.nf == 0) {
+      std::vector<double> res(s.n);
+      const bool ok = cost.EvaluateAt(u.data(), res.data(), nullptr);
+      run.cost = ok ? 0.5 * std::inner_product(res.begin(), res.end(), res.begin(), 0.0) : kInf;
+      run.termination = ok ? ceres::CONVERGENCE : ceres::FAILURE;
+      run.message = ok ? "all parameters fixed: nothing to solve" : "model is not finite at the fixed parameters";
+    } else {
+      ToSolver(s, st.data(), u.data());
+      ceres::Solver::Summary sum;
+      ceres::Solve(so, &problem, &sum);
+      run.termination = sum.termination_type;
+      run.cost = sum.final_cost;
+      run.iterations = static_cast<int>(sum.iterations.size()) - 1;
+      run.message = sum.message;
+      if (std::string e = model_error(); !e.empty()) run.message = e;
+    }
+    run.u.assign(u.begin(), u.begin() + s.nf);
+    if (run.termination == ceres::CONVERGENCE) r.starts_converged += 1;
+    const bool usable = Usable(run.termination) && std::isfinite(run.cost);
+    const bool best_usable = Usable(best.termination) && std::isfinite(best.cost);
+    // Lowest cost wins; a converged run beats a non-converged one of (nearly) equal cost.
+    bool better = false;
+    if (usable && !best_usable) {
+      better = true;
+    } else if (usable && best_usable) {
+      const double tie = 1e-12 * std::max(best.cost, 1e-300);
+      better = run.cost < best.cost - tie ||
+               (std::abs(run.cost - best.cost) <= tie && run.termination == ceres::CONVERGENCE &&
+                best.termination != ceres::CONVERGENCE);
+    } else if (!usable && !best_usable && best.message.empty()) {
+      better = true;  // keep the first failure's message
+    }
+    if (better) best = std::move(run);
+  }
+
+  r.status = StatusOf(best.termination);
+  r.iterations = best.iterations;
+  r.message = best.message;
+  if (!(Usable(best.termination) && std::isfinite(best.cost))) {
+    r.status = FitStatus::kNumericalFailure;
+    if (r.message.empty()) r.message = "no start gave a finite cost";
+    return r;
+  }
+
+  // ---- solution, residuals and Jacobian (weighted, solver coordinates).
+  std::copy(best.u.begin(), best.u.end(), u.begin());
+  ToTheta(s, u.data(), theta.data());
+  Eigen::VectorXd res(s.n);
+  Eigen::Matrix<double, Eigen::Dynamic, Eigen::Dynamic, Eigen::RowMajor> jac(s.n, std::max(s.nf, 1));
+  if (!cost.EvaluateAt(u.data(), res.data(), s.nf > 0 ? jac.data() : nullptr)) {
+    r.status = FitStatus::kNumericalFailure;
+    r.message = "model or its derivative is not finite at the solution";
+    return r;
+  }
+  const Eigen::MatrixXd J = jac.leftCols(s.nf);
+
+  for (int j = 0; j < s.np; ++j) {
+    ParameterResult& q = r.parameters[j];
+    q.estimate = theta[j] * q.si_factor;
+    q.start = best.start[j] * q.si_factor;
+    q.std_error = q.fixed ? 0.0 : kNaN;
+    if (!q.fixed) {
+      const double tol_lo = 1e-6 * std::max(std::abs(s.lower[j]), 1.0);
+      const double tol_hi = 1e-6 * std::max(std::abs(s.upper[j]), 1.0);
+      // ln(theta) never reaches a lower bound of 0, so that bound is not reported.
+      q.at_lower = std::isfinite(s.lower[j]) && !(s.log[j] && s.lower[j] == 0) && theta[j] - s.lower[j] <= tol_lo;
+      q.at_upper = std::isfinite(s.upper[j]) && s.upper[j] - theta[j] <= tol_hi;
+    }
+  }
+
+  // ---- statistics (non-robust SSR of the weighted residuals).
+  r.ssr = res.squaredNorm();
+  r.chi2_reduced = r.dof > 0 ? r.ssr / r.dof : kNaN;
+  const Eigen::VectorXd fitted_w = s.y - res.cwiseProduct(s.sigma);
+  const Eigen::VectorXd raw_si = (s.y - fitted_w) * m.y_si_factor;
+  r.rmse = std::sqrt(raw_si.squaredNorm() / s.n);
+  {
+    const Eigen::VectorXd w = s.sigma.cwiseAbs2().cwiseInverse();
+    const double ybar = w.dot(s.y) / w.sum();
+    const double ss_tot = w.dot((s.y.array() - ybar).square().matrix());
+    r.r_squared = ss_tot > 0 ? 1.0 - r.ssr / ss_tot : kNaN;
+  }
+  {
+    const double n = s.n;
+    double k, m2lnl;  // -2 ln L up to constants shared by every model on the same data
+    if (opt.scale_covariance) {
+      k = s.nf + 1.0;
+      m2lnl = n * std::log(r.ssr / n);
+    } else {
+      k = s.nf;
+      m2lnl = r.ssr;
+    }
+    r.aic = m2lnl + 2 * k;
+    r.aicc = n > k + 1 ? r.aic + 2 * k * (k + 1) / (n - k - 1) : kNaN;
+    r.bic = m2lnl + k * std::log(n);
+  }
+
+  // ---- covariance in solver coordinates, then exactly to physical parameters.
+  const double s2 = r.dof > 0 ? r.ssr / r.dof : kNaN;
+  if (opt.covariance && s.nf > 0) {
+    // Jacobian the covariance is built from: under a robust loss, rows carry
+    // sqrt(rho'(r_i^2)) (Ceres' corrector; Huber and Cauchy have rho'' <= 0).
+    Eigen::MatrixXd Jc = J;
+    if (loss) {
+      for (int i = 0; i < s.n; ++i) {
+        double rho[3];
+        loss->Evaluate(res(i) * res(i), rho);
+        Jc.row(i) *= std::sqrt(std::max(rho[1], 0.0));
+      }
+    }
+    CovarianceOut cov = opt.covariance_backend == CovarianceBackend::kCeres
+                            ? CeresCovariance(s, Jc, u.data(), loss.get(), opt.min_reciprocal_condition)
+                            : EigenCovariance(Jc, opt.min_reciprocal_condition);
+    if (!cov.ok) {
+      cov = EigenCovariance(Jc, opt.min_reciprocal_condition);
+      cov.method = "eigen-pseudo-inverse";
+    }
+    r.covariance_method = cov.method;
+    r.rank_deficient = cov.rank < s.nf;
+    const Eigen::MatrixXd& cov_u = cov.cov_u;
+    Eigen::VectorXd dtheta(s.nf);  // dtheta/du, working units -> SI
+    for (int k = 0; k < s.nf; ++k) {
+      const int j = s.free_index[k];
+      dtheta(k) = (s.log[j] ? theta[j] : 1.0) * m.parameters[j].si_factor;
+    }
+    r.covariance = dtheta.asDiagonal() * cov_u * dtheta.asDiagonal();
+    if (opt.scale_covariance) r.covariance *= s2;
+    r.covariance_ok = !r.rank_deficient && r.covariance.allFinite();
+    r.correlation.resize(s.nf, s.nf);
+    for (int a = 0; a < s.nf; ++a) {
+      const int j = s.free_index[a];
+      r.parameters[j].std_error = std::sqrt(r.covariance(a, a));
+      for (int b = 0; b < s.nf; ++b) {
+        const double den = std::sqrt(r.covariance(a, a) * r.covariance(b, b));
+        r.correlation(a, b) = a == b ? 1.0 : (den > 0 ? r.covariance(a, b) / den : kNaN);
+        if (a != b && std::isfinite(r.correlation(a, b)))
+          r.max_abs_correlation = std::max(r.max_abs_correlation, std::abs(r.correlation(a, b)));
+      }
+    }
+    r.high_correlation = r.max_abs_correlation > opt.correlation_threshold;
+  }
+
+  // ---- flags as warnings.
+  for (int j = 0; j < s.np; ++j) {
+    const ParameterResult& q = r.parameters[j];
+    if (q.at_lower)
+      r.warnings.push_back(q.name + " = " + FormatNumber(theta[j]) + " " + q.unit + " is at its lower bound");
+    if (q.at_upper)
+      r.warnings.push_back(q.name + " = " + FormatNumber(theta[j]) + " " + q.unit + " is at its upper bound");
+  }
+  // Closure-pressure identifiability (domain brief §3, M1: outside [P_min/3, 3 P_max] is weakly determined).
+  const bool closure_free = m.closure_parameter < 0 || m.closure_parameter >= s.np || !s.fixed[m.closure_parameter];
+  if (m.has_closure_pressure() && closure_free) {
+    const double pc = m.ClosurePressure(theta.data());
+    const double pmin = s.x.minCoeff(), pmax = s.x.maxCoeff();
+    const double f = opt.closure_range_factor;
+    if (std::isfinite(pc) && (pc < pmin / f || pc > f * pmax)) {
+      r.closure_outside_range = true;
+      const std::string label =
+          m.closure_parameter >= 0 ? ParamLabel(m, m.closure_parameter) : std::string("closure pressure");
+      r.warnings.push_back(label + " = " + FormatNumber(pc) + " " + m.x_unit + " is outside [P_min/" +
+                           FormatNumber(f) + ", " + FormatNumber(f) + " P_max] = [" + FormatNumber(pmin / f) +
+                           ", " + FormatNumber(f * pmax) + "] " + m.x_unit + ": the data barely constrain it");
+    }
+  }
+  if (r.high_correlation)
+    r.warnings.push_back("|correlation| = " + FormatNumber(r.max_abs_correlation) + " exceeds " +
+                         FormatNumber(opt.correlation_threshold) + ": parameters are not separately identifiable");
+  if (r.rank_deficient)
+    r.warnings.push_back("J^T W J is rank deficient (reciprocal condition below " +
+                         FormatNumber(opt.min_reciprocal_condition) + "): covariance from a pseudo-inverse");
+  if (r.status == FitStatus::kMaxIterations)
+    r.warnings.push_back("stopped at the iteration limit (" + std::to_string(opt.max_iterations) + ")");
+
+  // ---- residual diagnostics.
+  ResidualDiagnostics& d = r.residuals;
+  d.x = s.x * m.x_si_factor;
+  d.observed = s.y * m.y_si_factor;
+  d.fitted = fitted_w * m.y_si_factor;
+  d.sigma = s.sigma * m.y_si_factor;
+  d.raw = raw_si;
+  d.leverage = Leverages(J);
+  d.standardized = StudentizedResiduals(d.raw, d.sigma, d.leverage, std::sqrt(s2));
+  std::vector<int> order(s.n);
+  std::iota(order.begin(), order.end(), 0);
+  std::stable_sort(order.begin(), order.end(), [&](int a, int b) { return s.x[a] < s.x[b]; });
+  Eigen::VectorXd ordered(s.n);
+  for (int i = 0; i < s.n; ++i) ordered(i) = res(order[i]);
+  const RunsTest runs = WaldWolfowitzRuns(ordered);
+  d.runs = runs.runs;
+  d.n_positive = runs.n_positive;
+  d.n_negative = runs.n_negative;
+  d.runs_z = runs.z;
+  d.runs_p = runs.p;
+  d.durbin_watson = DurbinWatson(ordered);
+  return r;
+}
+
+}  // namespace porofit
