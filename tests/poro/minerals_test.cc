@@ -66,7 +66,8 @@ TEST(MineralTable, OtherUnitsAreConverted) {
   lines[1] = "  modulus: Mpsi";
   lines[2] = "  density: kg/m3";
   lines[7] = "    density: 2650";
-  const Mineral& q = ParseMineralTable(Join(lines), "m.yaml").Get("quartz");
+  const MineralTable t = ParseMineralTable(Join(lines), "m.yaml");
+  const Mineral& q = t.Get("quartz");
   EXPECT_NEAR(q.bulk, 37 * 6.894757293168361e9, 1e-3);
   EXPECT_DOUBLE_EQ(q.density, 2650.0);
 }
