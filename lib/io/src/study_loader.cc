@@ -35,6 +35,14 @@ std::string Join(const std::vector<std::string>& words) {
 
 std::string Quote(const std::string& s) { return "'" + s + "'"; }
 
+std::string Fixed(double v, int digits) {
+  std::ostringstream os;
+  os.setf(std::ios::fixed);
+  os.precision(digits);
+  os << v;
+  return os.str();
+}
+
 // Words accepted for an enumerated key; the error lists them all.
 template <class E>
 E ParseChoice(const Field& f, const std::vector<std::pair<std::string, E>>& choices) {
@@ -226,10 +234,9 @@ ModelChoice ReadModelChoice(const YAML::Node& node, const std::string& file, con
   choice.model_id = id_field.Scalar();
   const ModelSpec* spec = registry.Find(choice.model_id);
   if (spec == nullptr) {
-    std::string msg = "unknown model " + Quote(choice.model_id);
+    std::string msg = "unknown model " + Quote(choice.model_id) + " (valid models: " + Join(registry.ids()) + ")";
     const std::string near = NearestWord(choice.model_id, registry.ids());
     if (!near.empty()) msg += "; did you mean " + Quote(near) + "?";
-    msg += " valid models: " + Join(registry.ids());
     throw InputError(id_field.at, msg);
   }
   if (!params) return choice;
@@ -241,10 +248,10 @@ ModelChoice ReadModelChoice(const YAML::Node& node, const std::string& file, con
     const std::string name = it->first.Scalar();
     const int index = spec->ParameterIndex(name);
     if (index < 0) {
-      std::string msg = "model " + Quote(choice.model_id) + " has no parameter " + Quote(name);
+      std::string msg = "model " + Quote(choice.model_id) + " has no parameter " + Quote(name) + " (parameters: " +
+                        Join(names) + ")";
       const std::string near = NearestWord(name, names);
       if (!near.empty()) msg += "; did you mean " + Quote(near) + "?";
-      msg += " parameters: " + Join(names);
       throw InputError(Where(file, it->first.Mark()), msg);
     }
     const ParameterSpec& ps = spec->parameters[static_cast<size_t>(index)];
@@ -296,8 +303,9 @@ std::vector<ModelChoice> ReadModels(const Field& f, const std::string& file, con
   f.ExpectList();
   if (f.node.size() == 0) throw InputError(f.at, Quote(f.path) + " is empty: list at least one model");
   std::vector<ModelChoice> out;
-  for (size_t i = 0; i < f.node.size(); ++i) {
-    ModelChoice c = ReadModelChoice(f.node[i], file, f.path + "[" + std::to_string(i + 1) + "]", registry);
+  const YAML::Node& list = f.node;
+  for (size_t i = 0; i < list.size(); ++i) {
+    ModelChoice c = ReadModelChoice(list[i], file, f.path + "[" + std::to_string(i + 1) + "]", registry);
     for (const auto& prior : out)
       if (prior.model_id == c.model_id)
         throw InputError(c.where, "model " + Quote(c.model_id) + " is listed twice in " + Quote(f.path));
@@ -362,10 +370,9 @@ Column ParseColumn(const YAML::Node& node, const std::string& file, const std::s
   for (int r = 0; r < kNumRoles; ++r)
     if (name == kRoles[static_cast<size_t>(r)].name) c.role = static_cast<Role>(r);
   if (c.role == kNumRoles) {
-    std::string msg = "unknown column " + Quote(name);
+    std::string msg = "unknown column " + Quote(name) + " (columns: " + Join(names) + ")";
     const std::string near = NearestWord(name, names);
     if (!near.empty()) msg += "; did you mean " + Quote(near) + "?";
-    msg += " columns: " + Join(names);
     throw InputError(c.at, msg);
   }
   if (space == std::string::npos || text.find_first_not_of(" \t", space) == std::string::npos)
@@ -482,7 +489,8 @@ Study Loader::Parse(std::string_view text) {
   if (!samples) throw InputError(top.at(), "missing required key 'samples' in the study");
   samples.ExpectList();
   if (samples.node.size() == 0) throw InputError(samples.at, "'samples' is empty: the study has no samples");
-  for (size_t i = 0; i < samples.node.size(); ++i) ReadSample(samples.node[i], i);
+  const YAML::Node& list = samples.node;
+  for (size_t i = 0; i < list.size(); ++i) ReadSample(list[i], i);
   return std::move(study_);
 }
 
@@ -495,8 +503,9 @@ std::vector<RawRow> Loader::ReadData(const Field& data, const std::string& sampl
   cols.ExpectList();
   if (cols.node.size() == 0) throw InputError(cols.at, "'data.columns' is empty");
   std::vector<Column> order;
-  for (size_t i = 0; i < cols.node.size(); ++i) {
-    Column c = ParseColumn(cols.node[i], file_, "data.columns[" + std::to_string(i + 1) + "]");
+  const YAML::Node& col_list = cols.node;
+  for (size_t i = 0; i < col_list.size(); ++i) {
+    Column c = ParseColumn(col_list[i], file_, "data.columns[" + std::to_string(i + 1) + "]");
     if (columns[c.role])
       throw InputError(c.at, std::string("column '") + kRoles[c.role].name + "' is declared twice");
     columns[c.role] = c;
@@ -509,8 +518,9 @@ std::vector<RawRow> Loader::ReadData(const Field& data, const std::string& sampl
   if (rows) {
     rows.ExpectList();
     if (rows.node.size() == 0) throw InputError(rows.at, "'data.rows' is empty: " + sample_what + " has no data points");
-    for (size_t i = 0; i < rows.node.size(); ++i) {
-      const YAML::Node row = rows.node[i];
+    const YAML::Node& row_list = rows.node;
+    for (size_t i = 0; i < row_list.size(); ++i) {
+      const YAML::Node row = row_list[i];
       RawRow r;
       r.where = Where(file_, row.Mark());
       if (!row.IsSequence())
@@ -598,7 +608,9 @@ std::vector<RawRow> Loader::ReadData(const Field& data, const std::string& sampl
 }
 
 void Loader::ReadSample(const YAML::Node& node, size_t index) {
-  const std::string slot = "samples[" + std::to_string(index + 1) + "]";
+  // Name the sample by its id in messages when it has a readable one.
+  std::string slot = "samples[" + std::to_string(index + 1) + "]";
+  if (node.IsMap() && node["id"].IsScalar()) slot = "sample '" + node["id"].Scalar() + "'";
   MapReader m(node, file_, slot);
   Field id = m.Get("id"), lithology = m.Get("lithology"), porosity = m.Get("porosity"),
         density = m.Get("bulk_density"), orientation = m.Get("orientation"), measurement = m.Get("measurement"),
@@ -796,12 +808,12 @@ void Loader::ReadSample(const YAML::Node& node, size_t index) {
       w.sigma_rho = sigma_of(kSigmaRho, u_rho, w.rho);
       const double ratio = w.vp / w.vs;
       if (!(ratio > kMinVpVsForPositiveBulk))
-        throw InputError(r.where, "Vp/Vs = " + FormatNumber(ratio) +
+        throw InputError(r.where, "Vp/Vs = " + Fixed(ratio, 4) +
                                       " must exceed sqrt(4/3) = 1.1547 (otherwise K < 0)");
       const DynamicModuli dm = ComputeDynamicModuli(w);
       if (ratio <= kMinVpVsForPositivePoisson)
-        Warn(r.where, what + ": Vp/Vs = " + FormatNumber(ratio) +
-                          " <= sqrt(2): Poisson ratio " + FormatNumber(dm.poisson) + " <= 0, unusual for rock");
+        Warn(r.where, what + ": Vp/Vs = " + Fixed(ratio, 4) +
+                          " <= sqrt(2): Poisson ratio " + Fixed(dm.poisson, 3) + " <= 0, unusual for rock");
       p.modulus = dm.bulk;
       p.sigma = has_sigma ? dm.sigma_bulk : 0.0;
       p.waves = w;
