@@ -81,7 +81,7 @@ std::string DescribeModel(const ModelSpec& spec) {
     closure = spec.parameters[static_cast<size_t>(spec.closure_parameter)].name + " (" +
               spec.parameters[static_cast<size_t>(spec.closure_parameter)].unit + ")";
   else if (spec.closure_pressure)
-    closure = "derived from the parameters (see notes)";
+    closure = "computed from the parameters (see notes)";
   out += Wrap(Pad("  closure:", kLabel), closure, kLabel);
   out += Wrap(Pad("  strain:", kLabel),
               spec.strain ? "closed form eps(P) = integral of dP/K from 0" : "no closed form",

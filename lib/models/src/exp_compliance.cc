@@ -43,7 +43,8 @@ ModelSpec MakeExpComplianceModel() {
       ">> P_max leaves only (C_0 - C_inf)/P_close identifiable, P_close << P_min leaves C_0 "
       "unidentifiable. Not nested with exp-modulus: compare the two with AICc. The start works "
       "on C = 1/K: C_inf just below the smallest C, C_0 from the first two points extrapolated "
-      "to P = 0, P_close from the decay of ln(C - C_inf).";
+      "to P = 0, P_close from the decay of ln(C - C_inf). Strain: eps = C_inf P + (C_0 - C_inf) "
+      "P_close (1 - exp(-P/P_close)).";
   s.parameters = {
       {"C_inf", "1/GPa", 1e-9, 0.0, kInf, ParameterTransform::kIdentity, false,
        "compressibility with all cracks closed (high-pressure asymptote)"},

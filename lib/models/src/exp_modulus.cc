@@ -46,7 +46,8 @@ ModelSpec MakeExpModulusModel() {
       "not enforced here. Nesting: this is linear-exp with B = 0 (regular nesting, F test "
       "valid); linear is its P_close -> infinity limit (boundary nesting, use AICc); not nested "
       "with exp-compliance. Typical dry sandstone [from memory]: K_inf 5-30 GPa, K_0/K_inf "
-      "0.2-0.8, P_close 3-30 MPa.";
+      "0.2-0.8, P_close 3-30 MPa. Strain: eps = P/K_inf + (P_close/K_inf) ln[K(P)/K_0] "
+      "[computed].";
   s.parameters = {
       {"K_inf", "GPa", 1e9, 0.0, kInf, ParameterTransform::kIdentity, false,
        "modulus with all cracks closed (high-pressure asymptote)"},

@@ -44,11 +44,11 @@ ModelSpec MakeGrainContactModel() {
       "[structure checked; prefactors from memory]";
   s.notes =
       "For a random pack of identical spheres a = [c^2 (1-phi_0)^2 mu_s^2 / (18 pi^2 "
-      "(1-nu_s)^2)]^(1/3) (coordination number c, porosity phi_0, grain shear modulus mu_s and "
+      "(1-nu_s)^2)]^(1/3) [prefactor from memory] (coordination number c, porosity phi_0, grain shear modulus mu_s and "
       "Poisson ratio nu_s), but only the amplitude a is identifiable from K(P). K(0) = 0 and the "
       "slope is infinite at P = 0: a granular-pack law, not a crack-closure law. It is "
       "power-ref with n = 1/3 and P_ref = 1 MPa (regular nesting, F test valid). Doubling P "
-      "multiplies K by 2^(1/3) = 1.2599.";
+      "multiplies K by 2^(1/3) = 1.2599. Strain: eps = (3/2) P^(2/3) / a.";
   s.parameters = {
       {"a", "GPa/MPa^(1/3)", 1e9 / 1e2, 0.0, kInf, ParameterTransform::kIdentity, false,
        "contact amplitude: K at P = 1 MPa"},

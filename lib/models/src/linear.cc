@@ -38,7 +38,7 @@ ModelSpec MakeLinearModel() {
       "Baseline against which the crack-closure models are ranked. It is the limit of exp-modulus "
       "as P_close -> infinity with (K_inf - K_0)/P_close held fixed; that is a boundary (limit) "
       "nesting, so the F test is not valid: compare with AICc. b is not bounded below, so a "
-      "falling trend can be represented; the strain is defined only while K_0 + b P > 0.";
+      "falling trend can be represented; strain eps = ln(1 + b P/K_0)/b (-> P/K_0 as b -> 0), defined while K_0 + b P > 0.";
   s.parameters = {
       {"K_0", "GPa", 1e9, 0.0, std::numeric_limits<double>::infinity(),
        ParameterTransform::kIdentity, false, "modulus extrapolated to zero pressure"},

@@ -45,7 +45,8 @@ ModelSpec MakePowerOffsetModel() {
       "which the power law sets in (fitted as ln P_r); it is poorly determined when it lies "
       "below the lowest data pressure, where K_0 and P_r trade off along K_0 P_r^(-n). As "
       "P_r -> 0 with K_0 P_r^(-n) fixed it tends to power-ref: a boundary (limit) nesting, so "
-      "the F test is invalid; compare with AICc. Typical n as for power-ref [from memory].";
+      "the F test is invalid; compare with AICc. Typical n as for power-ref [from memory]. Strain: eps = P_r [(1 + P/P_r)^(1-n) - 1] / "
+      "(K_0 (1 - n)).";
   s.parameters = {
       {"K_0", "GPa", 1e9, 0.0, kInf, ParameterTransform::kIdentity, false,
        "modulus at P = 0"},

@@ -44,14 +44,14 @@ ModelSpec MakePowerRefModel() {
       "points must be excluded. With n = 1/3 and P_ref = 1 MPa this is grain-contact (regular "
       "nesting, F test valid); it is the P_r -> 0 limit of power-offset with K_0 P_r^(-n) held "
       "fixed (boundary nesting, use AICc). Typical n [from memory]: 0.05-0.35 consolidated rock, "
-      "0.3-0.6 unconsolidated.";
+      "0.3-0.6 unconsolidated. Strain: eps = P / ((1 - n) K(P)).";
   s.parameters = {
       {"K_ref", "GPa", 1e9, 0.0, kInf, ParameterTransform::kIdentity, false,
        "modulus at the reference pressure"},
       {"n", "1", 1.0, 0.0, 1.0, ParameterTransform::kIdentity, false,
        "power-law exponent, d ln K / d ln P"},
       {"P_ref", "MPa", 1e6, 0.0, kInf, ParameterTransform::kLog, true,
-       "reference pressure (fixed by default at the geometric mean of the data pressures)"},
+       "reference pressure; start: geometric mean of the positive data pressures"},
   };
   AttachFunctor<PowerRef>(s);
   s.strain = PowerRefStrain;
