@@ -1,0 +1,354 @@
+#!/usr/bin/python3
+"""Generates the INVENTED demonstration study in samples/.
+
+Everything written here is invented: the Quorvane field, well QV-14 and its
+plugs do not exist, and the "measurements" are synthetic values from the
+crack-closure model K(P) = K_inf - (K_inf - K_0) exp(-P / P_close) (and the
+same form for the shear modulus of the dynamic plugs) plus seeded Gaussian
+noise. Parameters sit in the typical ranges of the domain brief (§3: dry
+sandstone K_inf 5-30 GPa, P* 3-30 MPa) and the noise levels follow its
+typical uncertainties (§2: static K 3-10 %, Vp 0.5-1 %, Vs 1-2 %).
+
+Run from anywhere with:  /usr/bin/python3 samples/generate.py
+Outputs (overwritten): samples/invented-field-study.yaml, samples/data/*.csv.
+Same seed, same files: the outputs are committed and must not be edited by hand.
+"""
+import math
+import os
+
+import numpy as np
+
+SEED = 20261201
+HERE = os.path.dirname(os.path.abspath(__file__))
+DATA = os.path.join(HERE, "data")
+PSI = 6894.757293168361e-6  # MPa per psi (1 psi = 6.894757 kPa, domain brief §2)
+FT = 0.3048                 # m per ft
+
+rng = np.random.default_rng(SEED)
+
+
+def closure(p, k_inf, k_0, p_close):
+    """K(P) in GPa for P in MPa (exponential crack-closure form)."""
+    p = np.asarray(p, dtype=float)
+    return k_inf - (k_inf - k_0) * np.exp(-p / p_close)
+
+
+def noisy(values, rel):
+    return values * (1.0 + rel * rng.standard_normal(len(values)))
+
+
+def velocities(k_gpa, mu_gpa, rho_gcc):
+    """Vp, Vs in km/s from K, mu in GPa and rho in g/cc (g/cc x (km/s)^2 = GPa)."""
+    vs = np.sqrt(mu_gpa / rho_gcc)
+    vp = np.sqrt((k_gpa + 4.0 / 3.0 * mu_gpa) / rho_gcc)
+    return vp, vs
+
+
+def fmt(x, digits):
+    return f"{x:.{digits}f}"
+
+
+def write_csv(name, header, rows, comment):
+    os.makedirs(DATA, exist_ok=True)
+    with open(os.path.join(DATA, name), "w", newline="\n") as f:
+        for line in comment:
+            f.write(f"# {line}\n")
+        f.write(",".join(header) + "\n")
+        for r in rows:
+            f.write(",".join(r) + "\n")
+
+
+def inline_rows(rows, indent=8):
+    pad = " " * indent
+    return "".join(f"{pad}- [{', '.join(r)}]\n" for r in rows)
+
+
+# ---------------------------------------------------------------- plug 2231V
+# Clean sandstone, static, first loading: CSV in MPa with a constant 5 MPa
+# pore pressure, 4 % noise and exactly one outlier (a gauge slip at step 6,
+# 35 % low). The plug is fitted with a Cauchy loss to down-weight that point.
+p_2231 = np.array([2, 4, 6, 8, 10, 13, 16, 20, 25, 30, 40, 50, 60], dtype=float)
+k_2231 = noisy(closure(p_2231, 17.5, 6.0, 9.0), 0.04)
+OUTLIER_INDEX = 5
+k_2231[OUTLIER_INDEX] *= 0.65
+write_csv(
+    "QV14-2231V-loading.csv",
+    ["P_c", "P_p", "K"],
+    [[fmt(p + 5.0, 1), "5.0", fmt(k, 3)] for p, k in zip(p_2231, k_2231)],
+    ["INVENTED DATA (samples/generate.py) - Quorvane field, well QV-14, plug QV14-2231V",
+     "static drained test, first loading; P_c and P_p in MPa, K (tangent) in GPa",
+     f"row {OUTLIER_INDEX + 1} is a deliberate outlier (strain-gauge slip)"],
+)
+
+# Same plug, unloading from 60 MPa: stiffer than loading at equal P
+# (stress-release cracks stay partly closed). Inline rows in descending
+# pressure order, with an absolute sigma_K column (3 % of the value).
+p_2231u = np.array([60, 50, 40, 30, 24, 18, 13, 9, 6, 3], dtype=float)
+k_2231u_true = closure(p_2231u, 18.5, 11.0, 7.0)
+k_2231u = noisy(k_2231u_true, 0.03)
+rows_2231u = [[fmt(p + 5.0, 1), "5.0", fmt(k, 3), fmt(0.03 * kt, 3)]
+              for p, k, kt in zip(p_2231u, k_2231u, k_2231u_true)]
+
+# Same plug, ultrasonic (dry), loading: differential pressure column,
+# velocities in km/s, 0.8 % Vp and 1.5 % Vs noise.
+p_2231d = np.array([2, 4, 6, 8, 11, 15, 20, 27, 35, 45, 60], dtype=float)
+vp_2231d, vs_2231d = velocities(closure(p_2231d, 22.0, 9.0, 8.0), closure(p_2231d, 16.0, 8.0, 8.0), 2.09)
+vp_2231d, vs_2231d = noisy(vp_2231d, 0.008), noisy(vs_2231d, 0.015)
+rows_2231d = [[fmt(p, 0), fmt(a, 3), fmt(b, 3)] for p, a, b in zip(p_2231d, vp_2231d, vs_2231d)]
+
+# ---------------------------------------------------------------- plug 2318H
+# Shaly sandstone, horizontal plug, static; the lab sheet is in field units:
+# P_c and P_p in psi (P_p held at 1000 psi), K in ksi. 5 % noise.
+p_2318 = np.array([2, 4, 7, 10, 14, 19, 25, 32, 40, 50], dtype=float)
+k_2318 = noisy(closure(p_2318, 13.0, 4.5, 16.0), 0.05)
+rows_2318 = []
+for p, k in zip(p_2318, k_2318):
+    pc_psi = (p + 1000 * PSI) / PSI
+    rows_2318.append([fmt(pc_psi, 0), "1000", fmt(k * 1e3 / (PSI * 1e3), 1)])  # GPa -> ksi
+write_csv(
+    "QV14-2318H.csv",
+    ['"P_c [psi]"', '"P_p [psi]"', '"K [ksi]"'],
+    rows_2318,
+    ["INVENTED DATA (samples/generate.py) - Quorvane field, well QV-14, plug QV14-2318H",
+     "static drained test, first loading; field units as logged by the lab sheet"],
+)
+
+# ---------------------------------------------------------------- plug 2409V
+# Limestone, static, pressures in bar, K in GPa, no stated uncertainties
+# (unweighted fit). 3 % noise.
+p_2409 = np.array([20, 50, 80, 120, 160, 220, 300, 420, 600], dtype=float)  # bar
+k_2409 = noisy(closure(p_2409 / 10.0, 32.0, 22.0, 12.0), 0.03)
+rows_2409 = [[fmt(p, 0), fmt(k, 2)] for p, k in zip(p_2409, k_2409)]
+
+# ---------------------------------------------------------------- plug 2544V
+# Shale, static, slow drainage (long hold per step); differential pressure in
+# MPa with a relative sigma column. 4 % noise.
+p_2544 = np.array([5, 8, 12, 17, 24, 32, 45, 60], dtype=float)
+k_2544 = noisy(closure(p_2544, 11.0, 6.5, 22.0), 0.04)
+write_csv(
+    "QV14-2544V.csv",
+    ["P", "K", "sigma_K"],
+    [[fmt(p, 0), fmt(k, 3), "4"] for p, k in zip(p_2544, k_2544)],
+    ["INVENTED DATA (samples/generate.py) - Quorvane field, well QV-14, plug QV14-2544V",
+     "shale, static drained test, 24 h hold per step; P in MPa, K in GPa, sigma_K in % of K"],
+)
+
+# ---------------------------------------------------------------- plug 2320H
+# Shaly sandstone, horizontal, ultrasonic (humidity-controlled dry), P_c and
+# P_p in MPa with an effective-pressure coefficient n = 0.85 for velocities,
+# velocities in ft/s, density per step in kg/m3. 1 % Vp, 2 % Vs noise.
+p_2320 = np.array([3, 5, 8, 11, 15, 20, 26, 33, 42, 55], dtype=float)  # differential, MPa
+pp_2320 = 8.0
+n_2320 = 0.85
+vp_2320, vs_2320 = velocities(closure(p_2320, 18.0, 7.0, 14.0), closure(p_2320, 11.0, 5.5, 12.0), 2.26)
+vp_2320, vs_2320 = noisy(vp_2320, 0.01), noisy(vs_2320, 0.02)
+rho_2320 = 2260.0 + 4.0 * p_2320 / 55.0  # slight compaction over the test
+write_csv(
+    "QV14-2320H-ultrasonic.csv",
+    ["P_c", "P_p", "Vp", "Vs", "rho"],
+    [[fmt(p + n_2320 * pp_2320, 2), fmt(pp_2320, 1), fmt(a * 1e3 / FT, 0), fmt(b * 1e3 / FT, 0), fmt(r, 1)]
+     for p, a, b, r in zip(p_2320, vp_2320, vs_2320, rho_2320)],
+    ["INVENTED DATA (samples/generate.py) - Quorvane field, well QV-14, plug QV14-2320H",
+     "ultrasonic, humidity-controlled dry, loading; P_c, P_p in MPa, Vp and Vs in ft/s, rho in kg/m3"],
+)
+
+# ---------------------------------------------------------------- plug 2551H
+# Shale, horizontal, dry ultrasonic; confining pressure only, with a constant
+# pore pressure of 2 MPa declared in the study; Vp and Vs in km/s.
+# 0.6 % Vp and 1.2 % Vs noise.
+p_2551 = np.array([3, 6, 10, 15, 21, 28, 36, 46, 58], dtype=float)  # differential, MPa
+vp_2551, vs_2551 = velocities(closure(p_2551, 16.0, 9.0, 20.0), closure(p_2551, 7.0, 4.5, 18.0), 2.52)
+vp_2551, vs_2551 = noisy(vp_2551, 0.006), noisy(vs_2551, 0.012)
+rows_2551 = [[fmt(p + 2.0, 0), fmt(a, 3), fmt(b, 3)] for p, a, b in zip(p_2551, vp_2551, vs_2551)]
+
+# ---------------------------------------------------------------- the study
+study = f"""# =====================================================================
+#  INVENTED DEMONSTRATION STUDY - NOT REAL DATA
+#  The Quorvane field, well QV-14 and every plug below are invented. All
+#  values were generated by samples/generate.py (seed {SEED}) from
+#  crack-closure curves plus Gaussian noise; regenerate with
+#      /usr/bin/python3 samples/generate.py
+#  and do not edit this file by hand.
+# =====================================================================
+version: 1
+name: Quorvane field, well QV-14 - plug program (invented)
+description: >-
+  Invented demonstration: six plugs of well QV-14 across clean sandstone,
+  shaly sandstone, limestone and shale; static drained and dry ultrasonic
+  tests, loading and unloading branches. Static and dynamic data are kept
+  as separate samples and never pooled.
+defaults:
+  fit:
+    multistart: 8
+    seed: {SEED}
+  models: [exp-modulus, exp-compliance]
+
+samples:
+  # Clean sandstone, static, first loading. Row {OUTLIER_INDEX + 1} of the CSV is an
+  # obvious outlier (gauge slip, 35 % low), so this plug uses a Cauchy loss.
+  - id: QV14-2231V
+    lithology: clean sandstone
+    porosity: 21 %
+    bulk_density: 2.09 g/cc
+    orientation: vertical
+    measurement: static
+    branch: loading
+    cycle: 1
+    uncertainty:
+      K: 4 %
+      calibrated: false
+    data:
+      columns: [P_c MPa, P_p MPa, K GPa]
+      file: data/QV14-2231V-loading.csv
+    models:
+      - exp-modulus
+      - exp-compliance
+      - id: linear-exp
+        parameters:
+          B: {{upper: 0.1 GPa/MPa}}
+    fit:
+      loss: cauchy
+      loss_scale: 2
+
+  # The same plug unloading from 60 MPa: stiffer than loading at equal P.
+  - id: QV14-2231V-unload
+    lithology: clean sandstone
+    porosity: 21 %
+    bulk_density: 2.09 g/cc
+    orientation: vertical
+    measurement: static
+    branch: unloading
+    cycle: 1
+    uncertainty:
+      calibrated: true
+    data:
+      columns: [P_c MPa, P_p MPa, K GPa, sigma_K GPa]
+      rows:
+{inline_rows(rows_2231u)}    models: [exp-modulus, exp-compliance]
+
+  # The same plug, dry ultrasonic velocities on loading.
+  - id: QV14-2231V-dyn
+    lithology: clean sandstone
+    porosity: 21 %
+    bulk_density: 2.09 g/cc
+    orientation: vertical
+    measurement: dynamic
+    branch: loading
+    cycle: 1
+    uncertainty:
+      Vp: 0.8 %
+      Vs: 1.5 %
+      rho: 0.01 g/cc
+      calibrated: true
+    data:
+      columns: [P MPa, Vp km/s, Vs km/s]
+      rows:
+{inline_rows(rows_2231d)}    models:
+      - exp-modulus
+      - exp-compliance
+      - id: linear-exp
+        parameters:
+          B: {{upper: 0.1 GPa/MPa}}
+
+  # Shaly sandstone, horizontal plug; lab sheet in psi and ksi.
+  - id: QV14-2318H
+    lithology: shaly sandstone
+    porosity: 0.16
+    bulk_density: 2.26 g/cc
+    orientation: horizontal
+    measurement: static
+    branch: loading
+    cycle: 1
+    uncertainty:
+      K: 5 %
+      calibrated: false
+    data:
+      columns: [P_c psi, P_p psi, K ksi]
+      file: data/QV14-2318H.csv
+    models: [exp-modulus, exp-compliance, linear]
+
+  # Limestone; pressures logged in bar; no stated uncertainties (unweighted).
+  - id: QV14-2409V
+    lithology: limestone
+    porosity: 0.11
+    bulk_density: 2430 kg/m3
+    orientation: vertical
+    measurement: static
+    branch: loading
+    cycle: 1
+    data:
+      columns: [P bar, K GPa]
+      rows:
+{inline_rows(rows_2409)}    models:
+      - exp-modulus
+      - linear
+      - id: power-ref
+        parameters:
+          P_ref: {{fixed: 15 MPa}}
+
+  # Shale: slow drainage, long holds; relative sigma column.
+  - id: QV14-2544V
+    lithology: shale
+    porosity: 7 %
+    bulk_density: 2.52 g/cc
+    orientation: vertical
+    measurement: static
+    branch: loading
+    cycle: 1
+    uncertainty:
+      calibrated: false
+    data:
+      columns: [P MPa, K GPa, sigma_K %]
+      file: data/QV14-2544V.csv
+    models:
+      - id: exp-modulus
+        parameters:
+          P_close: {{upper: 200 MPa}}
+      - linear
+      - power-offset
+
+  # Shaly sandstone, horizontal, dry ultrasonic; velocities in ft/s,
+  # effective-pressure coefficient 0.85 for the velocities.
+  - id: QV14-2320H-dyn
+    lithology: shaly sandstone
+    porosity: 0.15
+    bulk_density: 2.26 g/cc
+    orientation: horizontal
+    measurement: dynamic
+    branch: loading
+    cycle: 1
+    effective_pressure_coefficient: {n_2320}
+    uncertainty:
+      Vp: 1 %
+      Vs: 2 %
+      rho: 10 kg/m3
+      calibrated: true
+    data:
+      columns: [P_c MPa, P_p MPa, Vp ft/s, Vs ft/s, rho kg/m3]
+      file: data/QV14-2320H-ultrasonic.csv
+    models: [exp-modulus, exp-compliance]
+
+  # Shale, horizontal, dry ultrasonic; confining pressure with a constant
+  # 2 MPa pore pressure.
+  - id: QV14-2551H-dyn
+    lithology: shale
+    porosity: 6 %
+    bulk_density: 2.52 g/cc
+    orientation: horizontal
+    measurement: dynamic
+    branch: loading
+    cycle: 1
+    pore_pressure: 2 MPa
+    uncertainty:
+      Vp: 0.6 %
+      Vs: 1.2 %
+      rho: 0.01 g/cc
+      calibrated: true
+    data:
+      columns: [P_c MPa, Vp km/s, Vs km/s]
+      rows:
+{inline_rows(rows_2551)}    models: [exp-modulus, linear, power-offset]
+"""
+with open(os.path.join(HERE, "invented-field-study.yaml"), "w", newline="\n") as f:
+    f.write(study)
+print("wrote", os.path.join(HERE, "invented-field-study.yaml"))
