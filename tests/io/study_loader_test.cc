@@ -300,3 +300,31 @@ TEST(StudyLoader, InventedSampleStudyLoadsWithoutWarnings) {
 
 }  // namespace
 }  // namespace porofit
+
+namespace porofit {
+namespace {
+
+// The example in docs/study-file.md must stay loadable. Its CSV lives in
+// tests/data/good/data/P1-load.csv, so the text is parsed as if it sat there.
+TEST(StudyFileDoc, ExampleLoads) {
+  std::ifstream in(std::string(POROFIT_SOURCE_DIR) + "/docs/study-file.md");
+  std::ostringstream doc;
+  doc << in.rdbuf();
+  const std::string text = doc.str();
+  const size_t section = text.find("## Example");
+  ASSERT_NE(section, std::string::npos);
+  const size_t start = text.find("```yaml\n", section);
+  ASSERT_NE(start, std::string::npos);
+  const size_t end = text.find("```", start + 8);
+  const std::string yaml = text.substr(start + 8, end - start - 8);
+  const Study s = ParseStudy(yaml, Good("doc-example.yaml"), ModelRegistry::Builtin());
+  ASSERT_EQ(s.samples.size(), 3u);
+  EXPECT_EQ(s.samples[0].options.loss, RobustLoss::kCauchy);
+  EXPECT_EQ(s.samples[1].sample.branch, Branch::kUnloading);
+  EXPECT_EQ(s.samples[2].sample.kind, MeasurementKind::kDynamic);
+  EXPECT_DOUBLE_EQ(s.samples[2].sample.points[0].pore, 2e6);
+  EXPECT_TRUE(s.warnings.empty());
+}
+
+}  // namespace
+}  // namespace porofit
