@@ -2,7 +2,9 @@
 // InputError at exactly the listed location, with the fragment in the message.
 #include <gtest/gtest.h>
 
+#include <cctype>
 #include <fstream>
+#include <ostream>
 #include <sstream>
 #include <string>
 #include <vector>
@@ -15,6 +17,8 @@ namespace {
 struct BadCase {
   std::string study, location, fragment;
 };
+
+void PrintTo(const BadCase& c, std::ostream* os) { *os << c.study << " -> " << c.location; }
 
 std::vector<BadCase> ReadManifest() {
   std::ifstream in(std::string(POROFIT_TEST_DATA_DIR) + "/bad/cases.tsv");

@@ -547,7 +547,7 @@ std::vector<RawRow> Loader::ReadData(const Field& data, const std::string& sampl
   const std::string path = ResolveDataPath(file_, name);
   bool ok = false;
   const std::string text = ReadWholeFile(path, ok);
-  if (!ok) throw InputError(file.at, "cannot open data file " + Quote(name) + " (looked for " + Quote(path) + ")");
+  if (!ok) throw InputError(file.key_at, "cannot open data file " + Quote(name) + " (looked for " + Quote(path) + ")");
   bool seen = false;
   for (const auto& in : study_.inputs) seen = seen || (in.path == path && in.role == "data");
   if (!seen) study_.inputs.push_back({path, "data"});
@@ -808,7 +808,8 @@ void Loader::ReadSample(const YAML::Node& node, size_t index) {
       w.sigma_rho = sigma_of(kSigmaRho, u_rho, w.rho);
       const double ratio = w.vp / w.vs;
       if (!(ratio > kMinVpVsForPositiveBulk))
-        throw InputError(r.where, "Vp/Vs = " + Fixed(ratio, 4) +
+        throw InputError(r.where, "Vp = " + ShowCell(*cell(kVp), *columns[kVp]) + ", Vs = " +
+                                      ShowCell(*cell(kVs), *columns[kVs]) + ": Vp/Vs = " + Fixed(ratio, 4) +
                                       " must exceed sqrt(4/3) = 1.1547 (otherwise K < 0)");
       const DynamicModuli dm = ComputeDynamicModuli(w);
       if (ratio <= kMinVpVsForPositivePoisson)
