@@ -10,6 +10,7 @@
 // "YYYY-MM-DDThh:mm:ssZ") replaces the run's start time in every output, so
 // that runs can be compared byte for byte.
 #include <boost/program_options.hpp>
+#include <glog/logging.h>
 
 #include <cstdlib>
 #include <filesystem>
@@ -203,6 +204,12 @@ int CmdModels(const std::vector<std::string>& args) {
 }  // namespace
 
 int main(int argc, char** argv) {
+  // Ceres logs through glog (e.g. a rank-deficient covariance at ERROR level).
+  // porofit reports those conditions itself as fit flags, so the solver's own
+  // log stays quiet and never writes log files.
+  FLAGS_logtostderr = true;
+  FLAGS_minloglevel = google::GLOG_FATAL;
+  google::InitGoogleLogging(argv[0]);
   try {
     if (argc < 2) {
       std::cerr << kUsage;

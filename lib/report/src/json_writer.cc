@@ -234,6 +234,7 @@ Json FitJson(const StudySample& ss, const ModelChoice& choice, const FitResult& 
                       {"n_negative", has ? Json(d.n_negative) : Json(nullptr)},
                       {"z", stat(d.runs_z)},
                       {"p_value", stat(d.runs_p)},
+                      {"unit", "1"},
                       {"note", "Wald-Wolfowitz runs test on residual signs; normal approximation, weak when n < 10"}};
   res["durbin_watson"] = stat(d.durbin_watson);
   j["residuals"] = res;

@@ -57,8 +57,14 @@ void SampleBlock(const StudySample& ss, const SampleRun& sr, std::ostream& out) 
       << (IsWeighted(s) ? (s.sigma_absolute ? "; weighted, sigma absolute" : "; weighted, sigma relative")
                         : "; unweighted")
       << "\n";
+  // The flags column is as wide as this sample's longest flag list.
+  size_t flags_width = 5;
+  for (const FitResult& r : sr.fits) {
+    flags_width = std::max(flags_width, detail::Join(detail::FitFlags(r, ss.options), ",").size());
+  }
+  flags_width += 2;
   out << "  " << Pad("model", 15) << Pad("status", 16) << PadLeft("RMSE GPa", 10) << PadLeft("AICc", 10) << "  "
-      << Pad("flags", 22) << "parameters (estimate ± 1 SE)\n";
+      << Pad("flags", flags_width) << "parameters (estimate ± 1 SE)\n";
   const FitResult* best = nullptr;
   const FitResult* second = nullptr;
   for (const FitResult& r : sr.fits) {
@@ -66,7 +72,7 @@ void SampleBlock(const StudySample& ss, const SampleRun& sr, std::ostream& out) 
     const std::vector<std::string> flags = detail::FitFlags(r, ss.options);
     out << "  " << Pad(r.model_id, 15) << Pad(std::string(ToString(r.status)), 16)
         << PadLeft(has ? Fmt("%.4f", r.rmse / units::kGPa) : "-", 10)
-        << PadLeft(has ? Fmt("%.2f", r.aicc) : "-", 10) << "  " << Pad(flags.empty() ? "-" : detail::Join(flags, ","), 22)
+        << PadLeft(has ? Fmt("%.2f", r.aicc) : "-", 10) << "  " << Pad(flags.empty() ? "-" : detail::Join(flags, ","), flags_width)
         << ParameterText(r) << "\n";
     if (r.status != FitStatus::kConverged) out << "      ! " << r.message << "\n";
     for (const std::string& w : r.warnings) out << "      note: " << w << "\n";
