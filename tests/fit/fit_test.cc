@@ -193,12 +193,14 @@ TEST(Fit, RobustLossDownWeightsOneGrossOutlier) {
   EXPECT_GT(std::abs(b.residuals.raw[7]), 3.5e9);  // the outlier stays an outlier
 }
 
-TEST(Fit, CovarianceBackendsAgree) {
+TEST(Fit, CovarianceBackendsAgreeToRounding) {
   const ModelSpec& m = Model("exp-modulus");
   std::mt19937_64 rng(14);
   FitRequest req;
   req.model = &m;
   req.data = Synthesize(m, {20, 8, 10}, Pressures(15), 0.2, &rng);
+  req.data.y[3] += 1e9;  // one outlier, and a robust loss: the corrector path too
+  req.options.loss = RobustLoss::kHuber;
   req.options.covariance_backend = CovarianceBackend::kCeres;
   const FitResult a = Fit(req);
   req.options.covariance_backend = CovarianceBackend::kEigen;
@@ -209,7 +211,7 @@ TEST(Fit, CovarianceBackendsAgree) {
   EXPECT_EQ(b.covariance_method, "eigen-svd");
   for (int i = 0; i < 3; ++i)
     for (int j = 0; j < 3; ++j)
-      EXPECT_NEAR(a.covariance(i, j), b.covariance(i, j), 1e-10 * std::sqrt(a.covariance(i, i) * a.covariance(j, j)));
+      EXPECT_NEAR(a.covariance(i, j), b.covariance(i, j), 1e-12 * std::sqrt(a.covariance(i, i) * a.covariance(j, j)));
 }
 
 TEST(Fit, LogTransformedCovarianceMatchesDeltaMethodOfTheJacobian) {

@@ -16,8 +16,11 @@ std::string_view ToString(RobustLoss l);
 
 /// How the covariance of the estimates is computed at the solution. Both work
 /// on the column-equilibrated weighted Jacobian (so the rank test does not
-/// depend on parameter units) and agree to rounding; a rank-deficient problem
-/// falls back to the Eigen pseudo-inverse either way.
+/// depend on parameter units) and agree to rounding (max |dCov_ij| /
+/// sqrt(Cov_ii Cov_jj) <= 2e-14 over every catalogue model, plain and Huber,
+/// measured); Eigen is the default because it skips building a second Ceres
+/// problem (about 3 us of a 15-point fit, docs/benchmarks.md). A rank-deficient
+/// problem falls back to the Eigen pseudo-inverse either way.
 enum class CovarianceBackend {
   kCeres,  ///< ceres::Covariance, DENSE_SVD ("ceres-dense-svd")
   kEigen,  ///< SVD of the Jacobian with Eigen ("eigen-svd"), no second Ceres problem
@@ -50,17 +53,21 @@ struct FitOptions {
   /// cost change 1e-16 (about one rounding step) rather than 1e-14: at 1e-14
   /// the solver stops early in flat valleys (NIST StRD ENSO, b8 then has only
   /// 5.8 correct digits; 6.6 at 1e-16, measured).
-  double function_tolerance = 1e-16;
+  double function_tolerance = 1e-15;
   double gradient_tolerance = 1e-14;
   double parameter_tolerance = 1e-16;
 
   /// Compute covariance, standard errors and correlations.
   bool covariance = true;
+  /// Fill FitResult::residuals (leverages, studentised residuals, runs test,
+  /// Durbin–Watson). Resampling refits that only need the estimates turn it
+  /// off; the residual vectors are then empty.
+  bool residual_diagnostics = true;
   /// Scale the covariance by s^2 = SSR/(n-p). The loader sets this false when
   /// a sample's uncertainties are declared absolute. chi^2_nu is always reported.
   bool scale_covariance = true;
   /// Which implementation computes the covariance (see CovarianceBackend).
-  CovarianceBackend covariance_backend = CovarianceBackend::kCeres;
+  CovarianceBackend covariance_backend = CovarianceBackend::kEigen;
   /// Reciprocal condition number below which J^T W J (columns equilibrated)
   /// counts as rank deficient.
   double min_reciprocal_condition = 1e-14;
