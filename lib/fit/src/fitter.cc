@@ -71,8 +71,14 @@ class WeightedResiduals final : public ceres::CostFunction {
   explicit WeightedResiduals(const Setup& s) : WeightedResiduals(s, 0, s.n) {}
 
   bool Evaluate(double const* const* parameters, double* residuals, double** jacobians) const override {
+    return EvaluateAt(parameters[0], residuals, jacobians != nullptr ? jacobians[0] : nullptr);
+  }
+
+  // Row-major jacobian (count x nf) when non-null. An exception from the
+  // model is caught here and kept as the failure message.
+  bool EvaluateAt(const double* u, double* residuals, double* jacobian) const {
     try {
-      return EvaluateAt(parameters[0], residuals, jacobians != nullptr ? jacobians[0] : nullptr);
+      return EvaluateUnchecked(u, residuals, jacobian);
     } catch (const std::exception& e) {
       if (error_.empty()) error_ = std::string("model threw: ") + e.what();
       return false;
@@ -82,8 +88,7 @@ class WeightedResiduals final : public ceres::CostFunction {
     }
   }
 
-  // Row-major jacobian (n x nf) when non-null.
-  bool EvaluateAt(const double* u, double* residuals, double* jacobian) const {
+  bool EvaluateUnchecked(const double* u, double* residuals, double* jacobian) const {
     ToTheta(s_, u, theta_.data());
     const ModelSpec& m = *s_.model;
     for (int t = 0; t < count_; ++t) {
@@ -585,6 +590,7 @@ FitResult Fit(const FitRequest& req) {
   so.num_threads = 1;
 
   Run best;
+  std::vector<double> start_res, start_jac;
   for (const std::vector<double>& st : starts) {
     Run run;
     run.start = st;
@@ -597,6 +603,16 @@ FitResult Fit(const FitRequest& req) {
       run.message = ok ? "all parameters fixed: nothing to solve" : "model is not finite at the fixed parameters";
     } else {
       ToSolver(s, st.data(), u.data());
+      // Reject a start where the model is undefined before Ceres sees it
+      // (Ceres would log the failed evaluation to stderr).
+      start_res.resize(static_cast<size_t>(s.n));
+      start_jac.resize(static_cast<size_t>(s.n) * static_cast<size_t>(s.nf));
+      if (!cost.EvaluateAt(u.data(), start_res.data(), start_jac.data())) {
+        run.termination = ceres::FAILURE;
+        run.message = cost.error().empty() ? "model or its derivative is not finite at the start" : cost.error();
+        if (best.message.empty() && !Usable(best.termination)) best = run;
+        continue;
+      }
       ceres::Solver::Summary sum;
       ceres::Solve(so, &bounded, &sum);
       run.iterations = static_cast<int>(sum.iterations.size()) - 1;
