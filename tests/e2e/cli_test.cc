@@ -261,6 +261,14 @@ TEST(SampleStudy, ExistingOutputFolderIsRefusedThenReplacedWithOverwrite) {
   EXPECT_EQ(entries, 0u);
 }
 
+TEST(SampleStudy, FitCreatesMissingParentFoldersOfTheOutput) {
+  Scratch s;
+  const fs::path out = s.dir() / "results" / "plugs";
+  const Outcome r = s.Run("fit " + Quote(POROFIT_SAMPLE_STUDY) + " --out " + Quote(out.string()) + " -q");
+  EXPECT_EQ(r.exit_code, 0) << r.err;
+  EXPECT_TRUE(fs::exists(out / "results.json"));
+}
+
 TEST(SampleStudy, InputsAreNotModified) {
   Scratch s;
   const Study study = LoadStudy(POROFIT_SAMPLE_STUDY);

@@ -126,9 +126,24 @@ TEST_F(AtomicFolder, FailureDuringReplaceKeepsTheOldFolderIntact) {
   }
 }
 
-TEST_F(AtomicFolder, MissingParentFolderIsAnOutputError) {
+TEST_F(AtomicFolder, CreatesMissingParentFolders) {
+  const fs::path deep = root_ / "a" / "b" / "out";
+  WriteFolderAtomically(deep, [](const fs::path& d) { WriteOne(d, "x.txt", "x"); });
+  EXPECT_EQ(Slurp(deep / "x.txt"), "x");
+}
+
+TEST_F(AtomicFolder, FailureRemovesTheParentFoldersItCreated) {
+  const fs::path deep = root_ / "a" / "b" / "out";
+  EXPECT_THROW(WriteFolderAtomically(deep, [](const fs::path&) { throw std::runtime_error("simulated"); }),
+               std::runtime_error);
+  EXPECT_FALSE(fs::exists(root_ / "a"));
+}
+
+TEST_F(AtomicFolder, MissingParentFolderIsAnOutputErrorWhenParentsAreNotCreated) {
   try {
-    WriteFolderAtomically(root_ / "no" / "such" / "out", [](const fs::path&) {});
+    AtomicFolderOptions o;
+    o.create_parents = false;
+    WriteFolderAtomically(root_ / "no" / "such" / "out", [](const fs::path&) {}, o);
     FAIL() << "expected OutputError";
   } catch (const OutputError& e) {
     EXPECT_NE(std::string(e.what()).find("does not exist"), std::string::npos) << e.what();

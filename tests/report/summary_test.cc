@@ -50,7 +50,30 @@ TEST(Summary, NamesTheLowestAiccModelAmongConvergedFits) {
   run.samples[0].fits.push_back(second);
   run.study.samples[0].models.push_back(run.study.samples[0].models[0]);
   const std::string s = Summary(run);
-  EXPECT_NE(s.find("Lowest AICc: linear-exp (next exp-modulus, ΔAICc 2.50)"), std::string::npos) << s;
+  EXPECT_NE(s.find("Lowest AICc: linear-exp (next exp-modulus, ΔAICc 2.50)."), std::string::npos) << s;
+}
+
+TEST(Summary, SaysWhenAiccCannotSeparateTwoModels) {
+  StudyRun run = testing::HandBuiltRun();
+  FitResult second = run.samples[0].fits[0];
+  second.model_id = "exp-compliance";
+  run.samples[0].fits[0].aicc = 3.0;
+  second.aicc = 4.5;
+  run.samples[0].fits.push_back(second);
+  run.study.samples[0].models.push_back(run.study.samples[0].models[0]);
+  const std::string s = Summary(run);
+  EXPECT_NE(s.find("Lowest AICc: exp-modulus (next exp-compliance, ΔAICc 1.50: the data do not tell them apart)."),
+            std::string::npos)
+      << s;
+}
+
+TEST(Summary, StatesHowTheSampleWasWeighted) {
+  StudyRun run = testing::HandBuiltRun();
+  EXPECT_NE(Summary(run).find("weighted by sigma, SE rescaled by the scatter"), std::string::npos);
+  run.study.samples[0].options.scale_covariance = false;
+  EXPECT_NE(Summary(run).find("weighted by calibrated sigma, SE not rescaled"), std::string::npos);
+  for (DataPoint& d : run.study.samples[0].sample.points) d.sigma = 0;
+  EXPECT_NE(Summary(run).find("unweighted, SE from the scatter"), std::string::npos);
 }
 
 TEST(Summary, FlagsAppearInTheFlagsColumn) {

@@ -6,6 +6,7 @@
 #include <cerrno>
 #include <cstring>
 #include <system_error>
+#include <vector>
 
 namespace porofit {
 namespace fs = std::filesystem;
@@ -98,10 +99,6 @@ void WriteFolderAtomically(const fs::path& destination,
   }
   const fs::path parent = destination.parent_path().empty() ? fs::path(".") : destination.parent_path();
   std::error_code ec;
-  if (!fs::is_directory(parent, ec)) {
-    throw OutputError("cannot create output folder " + Quote(destination) + ": parent folder " +
-                      Quote(parent) + " does not exist");
-  }
   const auto dest_status = fs::symlink_status(destination, ec);
   const bool dest_exists = fs::exists(dest_status);
   if (dest_exists && !options.overwrite) {
@@ -111,10 +108,47 @@ void WriteFolderAtomically(const fs::path& destination,
     throw OutputError("output path " + Quote(destination) + " exists and is not a folder; not replacing it");
   }
 
-  const fs::path staging = MakeSibling(destination, "porofit-staging", /*create=*/true);
+  // Missing parents, outermost first, so a failure can take them away again.
+  std::vector<fs::path> created_parents;
+  if (!fs::is_directory(parent, ec)) {
+    if (!options.create_parents) {
+      throw OutputError("cannot create output folder " + Quote(destination) + ": parent folder " +
+                        Quote(parent) + " does not exist");
+    }
+    std::vector<fs::path> missing;
+    for (fs::path p = parent; !p.empty() && !fs::exists(fs::symlink_status(p, ec)); p = p.parent_path()) {
+      missing.push_back(p);
+      if (p == p.parent_path()) break;
+    }
+    for (auto it = missing.rbegin(); it != missing.rend(); ++it) {
+      if (!fs::create_directory(*it, ec) && ec) {
+        for (auto c = created_parents.rbegin(); c != created_parents.rend(); ++c) fs::remove(*c, ec);
+        throw OutputError("cannot create output folder " + Quote(destination) + ": cannot create " + Quote(*it) +
+                          ": " + ec.message());
+      }
+      created_parents.push_back(*it);
+    }
+    if (!fs::is_directory(parent, ec)) {
+      throw OutputError("cannot create output folder " + Quote(destination) + ": " + Quote(parent) +
+                        " is not a folder");
+    }
+  }
+  auto remove_created_parents = [&] {
+    std::error_code ignored;
+    for (auto c = created_parents.rbegin(); c != created_parents.rend(); ++c) fs::remove(*c, ignored);
+  };
+
+  fs::path staging;
+  try {
+    staging = MakeSibling(destination, "porofit-staging", /*create=*/true);
+  } catch (...) {
+    remove_created_parents();
+    throw;
+  }
   auto discard_staging = [&] {
     std::error_code ignored;
     fs::remove_all(staging, ignored);
+    remove_created_parents();
   };
   try {
     Step(options, "stage");

@@ -54,8 +54,9 @@ void SampleBlock(const StudySample& ss, const SampleRun& sr, std::ostream& out) 
   out << "\n  " << ToString(s.kind) << ", " << ToString(s.branch) << ", cycle " << s.cycle << "; "
       << s.points.size() << " points, P " << Fmt("%.3g", pmin / units::kMPa) << " to "
       << Fmt("%.3g", pmax / units::kMPa) << " MPa; porosity " << Fmt("%.3f", s.porosity)
-      << (IsWeighted(s) ? (s.sigma_absolute ? "; weighted, sigma absolute" : "; weighted, sigma relative")
-                        : "; unweighted")
+      << (IsWeighted(s) ? (ss.options.scale_covariance ? "; weighted by sigma, SE rescaled by the scatter"
+                                                       : "; weighted by calibrated sigma, SE not rescaled")
+                        : "; unweighted, SE from the scatter")
       << "\n";
   // The flags column is as wide as this sample's longest flag list.
   size_t flags_width = 5;
@@ -87,8 +88,12 @@ void SampleBlock(const StudySample& ss, const SampleRun& sr, std::ostream& out) 
   }
   if (best != nullptr) {
     out << "  Lowest AICc: " << best->model_id;
-    if (second != nullptr) out << " (next " << second->model_id << ", ΔAICc " << Fmt("%.2f", second->aicc - best->aicc) << ")";
-    out << ". Compare models on the same data only; check flags before using any fit.\n";
+    if (second != nullptr) {
+      const double gap = second->aicc - best->aicc;
+      out << " (next " << second->model_id << ", ΔAICc " << Fmt("%.2f", gap)
+          << (gap < 2 ? ": the data do not tell them apart" : "") << ")";
+    }
+    out << ".\n";
   } else {
     out << "  No converged fit with a defined AICc.\n";
   }
@@ -116,7 +121,9 @@ void WriteSummary(const StudyRun& run, std::ostream& out) {
     out << "\n";
     SampleBlock(run.study.samples[i], run.samples[i], out);
   }
-  out << "\nRMSE from raw residuals; AICc lower is better (Hurvich & Tsai 1989); flags: see docs/outputs.md.\n";
+  out << "\nRMSE from raw residuals. AICc: lower is better, compare only fits of the same sample; a gap under 2 "
+         "does not separate two models (Burnham & Anderson 2002). Check every flag and note before using a fit; "
+         "flags are explained in docs/outputs.md.\n";
 }
 
 }  // namespace porofit

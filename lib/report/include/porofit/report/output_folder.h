@@ -28,6 +28,9 @@ struct AtomicFolderOptions {
   /// Replace an existing destination folder. Without it, an existing
   /// destination is an OutputError and nothing is written.
   bool overwrite = false;
+  /// Create missing parent folders of the destination (like mkdir -p). Parents
+  /// created here are removed again if the write fails.
+  bool create_parents = true;
   /// Test hook, called with the name of each step just before it runs:
   /// "stage", "sync", "rename-aside", "rename-in", "remove-old". Throwing from
   /// it simulates a failure at that step. Empty in production.
