@@ -9,17 +9,20 @@ noise. Parameters sit in the typical ranges of the domain brief (§3: dry
 sandstone K_inf 5-30 GPa, P* 3-30 MPa) and the noise levels follow its
 typical uncertainties (§2: static K 3-10 %, Vp 0.5-1 %, Vs 1-2 %).
 
-Run from anywhere with:  /usr/bin/python3 samples/generate.py
-Outputs (overwritten): samples/invented-field-study.yaml, samples/data/*.csv.
+Run from anywhere with:  /usr/bin/python3 samples/generate.py [OUTPUT_DIR]
+Outputs (overwritten): samples/invented-field-study.yaml, samples/data/*.csv
+(or the same names under OUTPUT_DIR).
 Same seed, same files: the outputs are committed and must not be edited by hand.
 """
-import math
 import os
+import sys
 
 import numpy as np
 
 SEED = 20261201
-HERE = os.path.dirname(os.path.abspath(__file__))
+# Output folder: this script's folder, or the folder given as the only
+# argument (used by the test that checks the committed files are reproducible).
+HERE = os.path.abspath(sys.argv[1]) if len(sys.argv) > 1 else os.path.dirname(os.path.abspath(__file__))
 DATA = os.path.join(HERE, "data")
 PSI = 6894.757293168361e-6  # MPa per psi (1 psi = 6.894757 kPa, domain brief §2)
 FT = 0.3048                 # m per ft
