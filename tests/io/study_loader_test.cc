@@ -266,6 +266,42 @@ TEST(StudyLoader, InvalidDefaultFitOptionsAreReportedAtTheirKey) {
   }
 }
 
+TEST(StudyLoader, ReadsEveryFitOption) {
+  std::string text = kSmall;
+  text += R"(    fit:
+      loss: cauchy
+      loss_scale: 3
+      multistart: 2
+      start_spread: 0.25
+      seed: 99
+      max_iterations: 40
+      function_tolerance: 1e-10
+      gradient_tolerance: 1e-11
+      parameter_tolerance: 1e-12
+      covariance: false
+      covariance_backend: ceres
+      min_reciprocal_condition: 1e-12
+      correlation_threshold: 0.9
+      closure_range_factor: 5
+)";
+  const FitOptions o = ParseStudy(text, "small.yaml", ModelRegistry::Builtin()).samples[0].options;
+  EXPECT_EQ(o.loss, RobustLoss::kCauchy);
+  EXPECT_DOUBLE_EQ(o.loss_scale, 3);
+  EXPECT_EQ(o.multistart, 2);
+  EXPECT_DOUBLE_EQ(o.start_spread, 0.25);
+  EXPECT_EQ(o.seed, 99u);
+  EXPECT_EQ(o.max_iterations, 40);
+  EXPECT_DOUBLE_EQ(o.function_tolerance, 1e-10);
+  EXPECT_DOUBLE_EQ(o.gradient_tolerance, 1e-11);
+  EXPECT_DOUBLE_EQ(o.parameter_tolerance, 1e-12);
+  EXPECT_FALSE(o.covariance);
+  EXPECT_EQ(o.covariance_backend, CovarianceBackend::kCeres);
+  EXPECT_DOUBLE_EQ(o.min_reciprocal_condition, 1e-12);
+  EXPECT_DOUBLE_EQ(o.correlation_threshold, 0.9);
+  EXPECT_DOUBLE_EQ(o.closure_range_factor, 5);
+  EXPECT_TRUE(o.scale_covariance);  // unweighted sample
+}
+
 TEST(StudyLoader, UnknownFitOptionSuggestsTheNearestKey) {
   std::string text = kSmall;
   text += "    fit: {multistarts: 3}\n";

@@ -127,7 +127,8 @@ void ReadFitOptions(const Field& field, const std::string& file, const std::stri
         spread = m.Get("start_spread"), seed = m.Get("seed"), iters = m.Get("max_iterations"),
         ftol = m.Get("function_tolerance"), gtol = m.Get("gradient_tolerance"),
         ptol = m.Get("parameter_tolerance"), cov = m.Get("covariance"),
-        scale = m.Get("scale_covariance"), rcond = m.Get("min_reciprocal_condition"),
+        scale = m.Get("scale_covariance"), backend = m.Get("covariance_backend"),
+        rcond = m.Get("min_reciprocal_condition"),
         corr = m.Get("correlation_threshold"), closure = m.Get("closure_range_factor");
   m.Finish();
   FitOptions& o = out.options;
@@ -161,6 +162,11 @@ void ReadFitOptions(const Field& field, const std::string& file, const std::stri
     note(scale);
     out.scale_covariance = scale.Boolean();
     out.scale_covariance_at = scale.at;
+  }
+  if (backend) {
+    note(backend);
+    o.covariance_backend = ParseChoice<CovarianceBackend>(
+        backend, {{"ceres", CovarianceBackend::kCeres}, {"eigen", CovarianceBackend::kEigen}});
   }
   if (rcond) note(rcond), o.min_reciprocal_condition = rcond.Number();
   if (corr) note(corr), o.correlation_threshold = corr.Number();
@@ -547,7 +553,9 @@ std::vector<RawRow> Loader::ReadData(const Field& data, const std::string& sampl
   const std::string path = ResolveDataPath(file_, name);
   bool ok = false;
   const std::string text = ReadWholeFile(path, ok);
-  if (!ok) throw InputError(file.key_at, "cannot open data file " + Quote(name) + " (looked for " + Quote(path) + ")");
+  if (!ok)
+    throw InputError(file.key_at, "cannot open data file " + Quote(name) +
+                                      (path == name ? std::string() : " (looked for " + Quote(path) + ")"));
   bool seen = false;
   for (const auto& in : study_.inputs) seen = seen || (in.path == path && in.role == "data");
   if (!seen) study_.inputs.push_back({path, "data"});
