@@ -739,6 +739,9 @@ void Loader::ReadSample(const YAML::Node& node, size_t index) {
     need(kPc, "(confining pressure) or 'P' (differential pressure)");
     if (columns[kPp] && pore_pressure)
       throw InputError(pore_pressure.key_at, "pore_pressure is given both as a column 'P_p' and as a constant");
+    if (coefficient && !columns[kPp] && !pore_pressure)
+      throw InputError(coefficient.key_at, "effective_pressure_coefficient has no effect: " + what +
+                                               " gives no pore pressure (a 'P_p' column or 'pore_pressure')");
   }
   if (dyn) {
     forbid(kK, "is for static samples; " + what + " is dynamic (K is computed from Vp, Vs and rho)");
