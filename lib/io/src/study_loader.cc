@@ -25,8 +25,6 @@ using io::detail::TypeName;
 using io::detail::Where;
 using units::Quantity;
 
-constexpr double kInf = std::numeric_limits<double>::infinity();
-
 std::string Join(const std::vector<std::string>& words) {
   std::string s;
   for (const auto& w : words) s += (s.empty() ? "" : ", ") + w;
