@@ -102,14 +102,6 @@ Field MapReader::Get(const std::string& key) {
   return f;
 }
 
-Field MapReader::Require(const std::string& key) {
-  Field f = Get(key);
-  if (!f) throw InputError(at_, "missing required key '" + f.path + "' in " + what_);
-  if (f.node.IsNull())
-    throw InputError(f.key_at, "'" + f.path + "' in " + what_ + " has no value");
-  return f;
-}
-
 void MapReader::Finish() const {
   for (const Entry& e : entries_) {
     if (e.used) continue;

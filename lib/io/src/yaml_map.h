@@ -45,10 +45,11 @@ class MapReader {
   /// Throws InputError if `node` is not a mapping or repeats a key.
   MapReader(const YAML::Node& node, std::string file, std::string what, std::string prefix = "");
 
-  /// Looks `key` up and marks it as read; an absent key gives !field.
+  /// Looks `key` up and marks it as read; an absent key gives !field. Callers
+  /// look up every key a mapping may hold first, then call Finish(), and only
+  /// then check required keys and values, so that a misspelt required key is
+  /// reported as unknown (with a suggestion) rather than as missing.
   Field Get(const std::string& key);
-  /// Like Get, but throws "missing required key" when absent.
-  Field Require(const std::string& key);
   /// Throws for the first key that was never looked up.
   void Finish() const;
 
