@@ -1,0 +1,241 @@
+#include "common.h"
+
+#include <functional>
+#include <numbers>
+
+#include <boost/math/distributions/normal.hpp>
+#include <boost/math/distributions/students_t.hpp>
+
+
+#include "porofit/core/error.h"
+
+namespace porofit::bands {
+
+namespace {
+// Double precision throughout: Boost's default promotes to long double, which
+// costs several times more per quantile for no accuracy a band needs.
+using Fast = boost::math::policies::policy<boost::math::policies::promote_double<false>>;
+}  // namespace
+
+double TwoSidedT(double confidence, double dof) {
+  const double q = 0.5 + 0.5 * confidence;
+  if (!(dof > 0)) return detail::kNaN;
+  if (std::isinf(dof)) return boost::math::quantile(boost::math::normal_distribution<double, Fast>(), q);
+  return boost::math::quantile(boost::math::students_t_distribution<double, Fast>(dof), q);
+}
+
+namespace detail {
+
+TQuantileCurve::TQuantileCurve(double confidence, double nu_fit) : confidence_(confidence), nu_fit_(nu_fit) {
+  if (!(nu_fit >= 2) || std::isinf(nu_fit)) return;
+  // Chebyshev interpolation of q(u) = t_q(nu_fit / u) on u in [0, 1]
+  // (u = 0 is the normal limit).
+  constexpr int N = 24;
+  std::vector<double> f(N);
+  for (int k = 0; k < N; ++k) {
+    const double x = std::cos(std::numbers::pi * (k + 0.5) / N);
+    const double u = 0.5 * (x + 1.0);
+    f[static_cast<size_t>(k)] = TwoSidedT(confidence, u > 0 ? nu_fit / u : kInf);
+  }
+  coef_.assign(N, 0.0);
+  for (int j = 0; j < N; ++j) {
+    double acc = 0;
+    for (int k = 0; k < N; ++k) acc += f[static_cast<size_t>(k)] * std::cos(std::numbers::pi * j * (k + 0.5) / N);
+    coef_[static_cast<size_t>(j)] = 2.0 * acc / N;
+  }
+  coef_[0] *= 0.5;
+  exact_ = false;
+}
+
+double TQuantileCurve::operator()(double nu) const {
+  if (exact_ || !(nu >= nu_fit_)) return TwoSidedT(confidence_, nu);
+  const double u = std::isinf(nu) ? 0.0 : nu_fit_ / nu;
+  const double x = 2.0 * u - 1.0;
+  // Clenshaw recurrence.
+  double b1 = 0, b2 = 0;
+  for (size_t j = coef_.size() - 1; j >= 1; --j) {
+    const double b0 = 2.0 * x * b1 - b2 + coef_[j];
+    b2 = b1;
+    b1 = b0;
+  }
+  return x * b1 - b2 + coef_[0];
+}
+
+}  // namespace detail
+
+double WelchSatterthwaiteDof(double v_fit, double dof_fit, double v_known) {
+  // nu_eff = (v_fit + v_known)^2 / (v_fit^2/nu_fit + v_known^2/inf)
+  //        = nu_fit (1 + v_known/v_fit)^2.
+  if (std::isinf(dof_fit)) return std::numeric_limits<double>::infinity();
+  if (!(v_fit > 0)) return std::numeric_limits<double>::infinity();
+  const double r = 1.0 + std::max(v_known, 0.0) / v_fit;
+  return dof_fit * r * r;
+}
+
+CurveGradient EvaluateCurve(const FitResult& fit, const ModelSpec& m, const std::vector<double>& pressure) {
+  CurveGradient out;
+  const size_t np = m.parameters.size();
+  std::vector<double> th(np), grad(np);
+  for (size_t j = 0; j < np && j < fit.parameters.size(); ++j)
+    th[j] = fit.parameters[j].estimate / m.parameters[j].si_factor;
+  out.value.resize(pressure.size());
+  out.gradient.assign(pressure.size(), std::vector<double>(fit.free_index.size()));
+  for (size_t i = 0; i < pressure.size(); ++i) {
+    const double kw = m.value_and_gradient(th.data(), pressure[i] / m.x_si_factor, grad.data());
+    out.value[i] = kw * m.y_si_factor;
+    for (size_t k = 0; k < fit.free_index.size(); ++k) {
+      const auto j = static_cast<size_t>(fit.free_index[k]);
+      out.gradient[i][k] = m.y_si_factor * grad[j] / m.parameters[j].si_factor;
+    }
+  }
+  return out;
+}
+
+namespace detail {
+
+FitView ViewOf(const BandRequest& r) {
+  FitView v;
+  v.model = r.fit_request->model;
+  const FitResult& f = *r.fit;
+  const size_t np = v.model->parameters.size();
+  v.theta_working.resize(np);
+  for (size_t j = 0; j < np; ++j) v.theta_working[j] = f.parameters[j].estimate / v.model->parameters[j].si_factor;
+  v.free_index = f.free_index;
+  for (int j : v.free_index) v.theta_free_si.push_back(f.parameters[static_cast<size_t>(j)].estimate);
+  v.n = f.n;
+  v.p = f.p;
+  v.scaled = f.covariance_scaled;
+  v.k_dof = v.scaled ? static_cast<double>(f.dof) : kInf;
+  return v;
+}
+
+std::string CheckRequest(const BandRequest& r, bool need_covariance, bool need_residuals) {
+  if (r.fit_request == nullptr || r.fit_request->model == nullptr)
+    throw InputError({}, "bands: the request has no fit request or model");
+  if (r.fit == nullptr) throw InputError({}, "bands: the request has no fit result");
+  if (std::string bad = r.options.Validate(); !bad.empty()) throw InputError({}, bad);
+  if (!(std::isfinite(r.k_s) && r.k_s > 0))
+    throw InputError({}, "bands.k_s = " + FormatNumber(r.k_s) + " Pa violates k_s > 0");
+  if (!(std::isfinite(r.sigma_k_s) && r.sigma_k_s >= 0))
+    throw InputError({}, "bands.sigma_k_s = " + FormatNumber(r.sigma_k_s) + " Pa violates sigma_k_s >= 0");
+  if (!std::isnan(r.porosity) && !(r.porosity >= 0 && r.porosity < 1))
+    throw InputError({}, "bands.porosity = " + FormatNumber(r.porosity) + " is outside [0, 1)");
+  if (!std::isnan(r.fluid_modulus) && !(r.fluid_modulus > 0))
+    throw InputError({}, "bands.fluid_modulus = " + FormatNumber(r.fluid_modulus) + " Pa violates fluid_modulus > 0");
+  if (r.grid.size() == 0) throw InputError({}, "bands: the pressure grid is empty");
+  for (double p : r.grid.pressure)
+    if (!std::isfinite(p)) throw InputError({}, "bands: grid pressure " + FormatNumber(p) + " is not finite");
+
+  const FitResult& f = *r.fit;
+  const ModelSpec& m = *r.fit_request->model;
+  if (f.status != FitStatus::kConverged)
+    return "fit status is " + std::string(ToString(f.status)) + ": no bands from an unconverged fit";
+  if (f.parameters.size() != m.parameters.size()) return "fit result does not match model " + m.id;
+  if (need_covariance) {
+    const auto p = static_cast<Eigen::Index>(f.free_index.size());
+    if (!f.covariance_ok || f.covariance.rows() != p || f.covariance.cols() != p)
+      return "fit has no usable covariance (rank deficient or not computed)";
+  }
+  if (need_residuals) {
+    const auto n = static_cast<Eigen::Index>(f.n);
+    const ResidualDiagnostics& d = f.residuals;
+    if (d.fitted.size() != n || d.raw.size() != n || d.sigma.size() != n || d.leverage.size() != n)
+      return "fit has no residual diagnostics (fitted values, sigmas, leverages)";
+    if (static_cast<Eigen::Index>(r.fit_request->data.y.size()) != n) return "fit request does not match the fit";
+  }
+  return {};
+}
+
+bool CurveAt(const ModelSpec& m, const double* theta, const std::vector<double>& pressure, double* k_out) {
+  bool ok = true;
+  for (size_t i = 0; i < pressure.size(); ++i) {
+    const double k = m.value(theta, pressure[i] / m.x_si_factor) * m.y_si_factor;
+    k_out[i] = k;
+    ok = ok && std::isfinite(k) && k > 0;
+  }
+  return ok;
+}
+
+double Percentile(std::vector<double>& v, double q) {
+  if (v.empty()) return kNaN;
+  const double h = (static_cast<double>(v.size()) - 1) * q;
+  const auto lo = static_cast<size_t>(std::floor(h));
+  const double frac = h - static_cast<double>(lo);
+  std::nth_element(v.begin(), v.begin() + static_cast<std::ptrdiff_t>(lo), v.end());
+  const double a = v[lo];
+  if (frac == 0 || lo + 1 >= v.size()) return a;
+  // The next order statistic is the smallest of the upper part.
+  const double b = *std::min_element(v.begin() + static_cast<std::ptrdiff_t>(lo) + 1, v.end());
+  return a + frac * (b - a);
+}
+
+namespace {
+
+// Type-7 position: order statistics k = floor(h) and k + 1 with weight frac,
+// h = (N - 1) q (numpy's default percentile definition).
+struct Position {
+  size_t k = 0;
+  double frac = 0;
+};
+Position PositionOf(size_t n, double q) {
+  const double h = (static_cast<double>(n) - 1) * q;
+  Position p;
+  p.k = static_cast<size_t>(std::floor(h));
+  p.frac = h - static_cast<double>(p.k);
+  if (p.k + 1 >= n) p.frac = 0;
+  return p;
+}
+
+}  // namespace
+
+void Percentiles3(std::vector<double>& v, double tail, double& lo, double& mid, double& hi) {
+  const size_t n = v.size();
+  if (n == 0) {
+    lo = mid = hi = kNaN;
+    return;
+  }
+  // Three selections, each on the part above the previous order statistic
+  // (introselect is linear; a bracketing sample pass was measured slower).
+  const Position pos[3] = {PositionOf(n, tail), PositionOf(n, 0.5), PositionOf(n, 1.0 - tail)};
+  double* out[3] = {&lo, &mid, &hi};
+  size_t first = 0;
+  for (int t = 0; t < 3; ++t) {
+    const Position p = pos[t];
+    const auto b = v.begin() + static_cast<std::ptrdiff_t>(first);
+    const auto kth = v.begin() + static_cast<std::ptrdiff_t>(p.k);
+    if (p.k >= first) std::nth_element(b, kth, v.end());
+    const double a = v[p.k];
+    *out[t] = p.frac == 0 ? a : a + p.frac * (*std::min_element(kth + 1, v.end()) - a);
+    first = std::max(first, p.k + 1);
+  }
+}
+
+void PercentileBand(const double* draws, size_t grid, const std::vector<char>& use, double confidence,
+                    int threads, Band& out) {
+  const size_t rows = use.size();
+  out.estimate.assign(grid, kNaN);
+  out.lower.assign(grid, kNaN);
+  out.upper.assign(grid, kNaN);
+  const double tail = 0.5 * (1.0 - confidence);
+  const int blocks = static_cast<int>((grid + 15) / 16);
+  const bool all = std::all_of(use.begin(), use.end(), [](char u) { return u != 0; });
+  ParallelFor(blocks, threads, [&](int b) {
+    std::vector<double> col;
+    col.reserve(rows);
+    const size_t g0 = static_cast<size_t>(b) * 16, g1 = std::min(grid, g0 + 16);
+    for (size_t g = g0; g < g1; ++g) {
+      const double* c = draws + g * rows;
+      if (all) {
+        col.assign(c, c + rows);
+      } else {
+        col.clear();
+        for (size_t r = 0; r < rows; ++r)
+          if (use[r]) col.push_back(c[r]);
+      }
+      Percentiles3(col, tail, out.lower[g], out.estimate[g], out.upper[g]);
+    }
+  });
+}
+
+}  // namespace detail
+}  // namespace porofit::bands
