@@ -37,12 +37,12 @@ struct ResidualDiagnostics {
   Eigen::VectorXd fitted;        ///< SI
   Eigen::VectorXd sigma;         ///< SI weights' sigma_i (1 if none given, in working units scaled to SI)
   Eigen::VectorXd raw;           ///< observed - fitted, SI
-  Eigen::VectorXd standardized;  ///< raw / (s * sigma_i * sqrt(1 - h_ii)) (internally studentised)
+  Eigen::VectorXd standardized;  ///< raw / (s * sigma_i * sqrt(1 - h_ii)), s^2 = SSR/(n-p) (internally studentised; NaN where h_ii = 1)
   Eigen::VectorXd leverage;      ///< h_ii, diagonal of the weighted hat matrix
-  int runs = 0;                  ///< number of sign runs of the raw residuals (zeros dropped)
+  int runs = 0;                  ///< number of sign runs of the residuals in x order (zeros dropped)
   int n_positive = 0, n_negative = 0;
   double runs_z = 0;             ///< Wald–Wolfowitz normal statistic
-  double runs_p = 0;             ///< two-sided p-value (normal approximation; weak when n < 10)
+  double runs_p = 0;             ///< two-sided p-value (normal approximation; weak when n < 10; NaN if one sign only)
   double durbin_watson = 0;      ///< sum (e_i - e_{i-1})^2 / sum e_i^2, weighted residuals in x order
 };
 
@@ -50,9 +50,9 @@ struct FitResult {
   std::string model_id;
   FitStatus status = FitStatus::kInvalidRequest;
   std::string message = "fit was not run";  ///< solver's or porofit's explanation
-  int iterations = 0;        ///< of the winning start
+  int iterations = 0;        ///< LM iterations of the winning start
   int starts_tried = 0;
-  int starts_converged = 0;
+  int starts_converged = 0;  ///< starts whose solver run met a convergence tolerance
 
   std::vector<ParameterResult> parameters;  ///< every model parameter, in model order
   Eigen::MatrixXd covariance;   ///< free parameters only, SI, in order of `free_index`
@@ -71,8 +71,19 @@ struct FitResult {
   double ssr = 0;         ///< weighted sum of squared residuals, sum (r_i/sigma_i)^2 (dimensionless when sigma given)
   double chi2_reduced = 0;  ///< ssr / dof
   double rmse = 0;        ///< sqrt(mean raw residual^2), SI
-  double r_squared = 0;   ///< 1 - SS_res/SS_tot (weighted)
-  double aic = 0, aicc = 0, bic = 0;  ///< Gaussian log-likelihood, sigma estimated unless absolute
+  double r_squared = 0;   ///< 1 - SSR/SS_tot, SS_tot = sum w_i (y_i - ybar_w)^2, w_i = 1/sigma_i^2
+  /// Information criteria from the Gaussian log-likelihood, dropping the
+  /// constants shared by every model fitted to the same data (domain brief §7;
+  /// Akaike 1974, Hurvich & Tsai 1989, Schwarz 1978). Which form depends on
+  /// FitOptions::scale_covariance:
+  ///  - true (sigma only relative, the noise level is estimated):
+  ///      AIC = n ln(SSR/n) + 2k,  BIC = n ln(SSR/n) + k ln n,  k = p + 1
+  ///    (the variance counts as a parameter);
+  ///  - false (sigma absolute): AIC = chi^2 + 2k, BIC = chi^2 + k ln n, k = p,
+  ///    with chi^2 = ssr.
+  /// AICc = AIC + 2k(k+1)/(n-k-1); NaN when n <= k + 1. Compare values only
+  /// between fits of the same data with the same scale_covariance.
+  double aic = 0, aicc = 0, bic = 0;
 
   // Flags.
   bool rank_deficient = false;

@@ -5,6 +5,24 @@
 //   minimise  sum_i rho( ((y_i - f(x_i; theta)) / sigma_i)^2 )   subject to  lower <= theta <= upper
 //
 // Fit() never throws for a fit that fails: the status says what happened.
+//
+// How it works (lib/fit/src/fitter.cc):
+//  - Data and settings are converted to the model's working units; the
+//    solver works on the free parameters only (fixed ones are removed from
+//    its vector), as u = ln(theta) for kLog parameters, with bounds on u.
+//  - Residuals r_i = (y_i - f(x_i)) / sigma_i with the exact Jacobian of
+//    ModelSpec::value_and_gradient. Plain least squares is one Ceres residual
+//    block for all points; a robust loss uses one block per point, because
+//    Ceres applies a loss to the squared norm of a whole block.
+//  - Starts, in order: extra_starts, the model's heuristic (with any
+//    ParameterSetting::start applied, moved inside the bounds), then
+//    multistart - 1 perturbations of the heuristic from std::mt19937_64(seed).
+//    The lowest cost wins. A start where the model is not finite is skipped.
+//  - A fixed_by_default parameter without a fixed value or start is held at
+//    the heuristic's value (else the first extra start's).
+//  - Covariance at the solution: see FitOptions::covariance_backend and
+//    FitResult::covariance_method; s^2 = SSR/(n-p) uses the plain
+//    (non-robust) SSR.
 #include <map>
 #include <optional>
 #include <string>
