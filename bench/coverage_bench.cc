@@ -20,6 +20,9 @@
 //
 // usage: porofit_coverage [--datasets N] [--boot-datasets M] [--replicates B]
 //                         [--threads T] [--models id,id] [--no-boot]
+//                         [--noise 0.02] [--sigma-ks 1] [--n 8,12,20]
+// --noise / --sigma-ks change the design (relative noise, K_s spread in GPa)
+// to a fit-dominated variance, where the quantile rules differ most.
 #include <chrono>
 #include <cmath>
 #include <cstdio>
@@ -89,6 +92,9 @@ struct Config {
   int replicates = 400;
   int threads = 2;
   bool boot = true;
+  double noise = 0.02;     // relative noise of K and the declared relative sigma
+  double sigma_ks = 1.0;   // GPa: spread of the lab's K_s estimate and its declared sigma
+  std::vector<int> ns = {8, 12, 20};
   std::vector<std::string> models;
 };
 
@@ -108,12 +114,12 @@ void RunDataset(const Truth& truth, const ModelSpec& m, int n, int index, std::u
   req.model = &m;
   for (int i = 0; i < n; ++i) {
     const double p = 2.0 + 58.0 * i / (n - 1);
-    const double k = m.value(truth.theta.data(), p) * (1.0 + 0.02 * rng.Normal());
+    const double k = m.value(truth.theta.data(), p) * (1.0 + cfg.noise * rng.Normal());
     req.data.x.push_back(p * 1e6);
     req.data.y.push_back(k * 1e9);
-    req.data.sigma.push_back(0.02 * k * 1e9);
+    req.data.sigma.push_back(cfg.noise * k * 1e9);
   }
-  const double ks_hat = 37.0 + rng.Normal();
+  const double ks_hat = 37.0 + cfg.sigma_ks * rng.Normal();
   const FitResult fit = Fit(req);
   const bool usable = fit.IsUsable() && fit.covariance_ok;
   double a_true[kNp];
@@ -123,7 +129,7 @@ void RunDataset(const Truth& truth, const ModelSpec& m, int n, int index, std::u
   r.fit_request = &req;
   r.fit = &fit;
   r.k_s = ks_hat * 1e9;
-  r.sigma_k_s = 1e9;
+  r.sigma_k_s = cfg.sigma_ks * 1e9;
   std::vector<double> g;
   for (double p : kPe) g.push_back(p * 1e6);
   r.grid = GridAt(g, 2e6, 60e6);
@@ -211,6 +217,12 @@ int main(int argc, char** argv) {
     else if (a == "--threads") cfg.threads = std::atoi(next().c_str());
     else if (a == "--models") cfg.models = Split(next());
     else if (a == "--no-boot") cfg.boot = false;
+    else if (a == "--noise") cfg.noise = std::atof(next().c_str());
+    else if (a == "--sigma-ks") cfg.sigma_ks = std::atof(next().c_str());
+    else if (a == "--n") {
+      cfg.ns.clear();
+      for (const auto& v : Split(next())) cfg.ns.push_back(std::atoi(v.c_str()));
+    }
     else {
       std::fprintf(stderr, "porofit_coverage: error: unrecognized argument: %s\n", a.c_str());
       return 1;
@@ -220,8 +232,9 @@ int main(int argc, char** argv) {
     for (const Truth& t : Truths()) cfg.models.push_back(t.id);
 
   std::printf("# porofit coverage study: nominal 95 %% pointwise alpha band; %d datasets per cell "
-              "(bootstrap: first %d, %d replicates); threads %d; MC s.e. of 0.95 at 2000 = 0.0049\n",
-              cfg.datasets, cfg.boot ? cfg.boot_datasets : 0, cfg.replicates, cfg.threads);
+              "(bootstrap: first %d, %d replicates); threads %d; noise %g of K; K_s 37 +- %g GPa; "
+              "MC s.e. of 0.95 at 2000 = 0.0049\n",
+              cfg.datasets, cfg.boot ? cfg.boot_datasets : 0, cfg.replicates, cfg.threads, cfg.noise, cfg.sigma_ks);
   std::printf("| model | n | method | P=5 | P=20 | P=40 | P=60 | P=90 (extrap.) | used | failed fits | "
               "failed/rejected replicates | mean half-width at P=20 |\n|---|---|---|---|---|---|---|---|---|---|---|---|\n");
   std::fflush(stdout);
@@ -231,7 +244,7 @@ int main(int argc, char** argv) {
     for (const auto& id : cfg.models) wanted = wanted || id == truth.id;
     if (!wanted) continue;
     const ModelSpec& m = *ModelRegistry::Builtin().Find(truth.id);
-    for (int n : {8, 12, 20}) {
+    for (int n : cfg.ns) {
       ++cell;
       const auto t0 = std::chrono::steady_clock::now();
       std::vector<std::vector<Tally>> per_thread(static_cast<size_t>(cfg.threads),

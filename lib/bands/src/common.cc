@@ -156,19 +156,6 @@ bool CurveAt(const ModelSpec& m, const double* theta, const std::vector<double>&
   return ok;
 }
 
-double Percentile(std::vector<double>& v, double q) {
-  if (v.empty()) return kNaN;
-  const double h = (static_cast<double>(v.size()) - 1) * q;
-  const auto lo = static_cast<size_t>(std::floor(h));
-  const double frac = h - static_cast<double>(lo);
-  std::nth_element(v.begin(), v.begin() + static_cast<std::ptrdiff_t>(lo), v.end());
-  const double a = v[lo];
-  if (frac == 0 || lo + 1 >= v.size()) return a;
-  // The next order statistic is the smallest of the upper part.
-  const double b = *std::min_element(v.begin() + static_cast<std::ptrdiff_t>(lo) + 1, v.end());
-  return a + frac * (b - a);
-}
-
 namespace {
 
 // Type-7 position: order statistics k = floor(h) and k + 1 with weight frac,

@@ -58,10 +58,6 @@ class TQuantileCurve {
   std::vector<double> coef_;
 };
 
-// Percentiles (type 7, linear interpolation between order statistics) of v;
-// v is reordered.
-double Percentile(std::vector<double>& v, double q);
-
 // Percentile band from a grid-major matrix (draws[g * rows + d]), using the
 // draws with use[d] = true; grid points are processed on `threads` threads.
 void PercentileBand(const double* draws, size_t grid, const std::vector<char>& use, double confidence,

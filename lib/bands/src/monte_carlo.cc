@@ -23,9 +23,25 @@ MonteCarloResult ComputeMonteCarloBands(const BandRequest& r) {
   const int D = r.options.monte_carlo_draws;
   const auto p = static_cast<Eigen::Index>(v.free_index.size());
 
-  // Cov = V diag(lambda) V^T; a square root that tolerates a semidefinite
+  // Draws are made in the fit's own coordinates: ln(theta) for parameters the
+  // solver fits as logarithms (ParameterTransform::kLog), theta otherwise.
+  // There the likelihood is closer to quadratic and a positive scale stays
+  // positive; drawing a poorly determined P_r in linear space instead gave
+  // 20 % rejected draws and 0.87 coverage for power-offset at 5 % noise
+  // (measured, docs/coverage.md). Cov_u = D^-1 Cov D^-1, D = diag(theta_j or 1).
+  std::vector<char> is_log(static_cast<size_t>(p));
+  Eigen::VectorXd centre(p), dinv(p);
+  for (Eigen::Index a = 0; a < p; ++a) {
+    const auto j = static_cast<size_t>(v.free_index[static_cast<size_t>(a)]);
+    const double t = v.theta_free_si[static_cast<size_t>(a)];
+    is_log[static_cast<size_t>(a)] = m.parameters[j].transform == ParameterTransform::kLog && t > 0;
+    centre(a) = is_log[static_cast<size_t>(a)] ? std::log(t) : t;
+    dinv(a) = is_log[static_cast<size_t>(a)] ? 1.0 / t : 1.0;
+  }
+  const Eigen::MatrixXd cov_u = dinv.asDiagonal() * f.covariance * dinv.asDiagonal();
+  // Cov_u = V diag(lambda) V^T; a square root that tolerates a semidefinite
   // covariance (tiny negative eigenvalues from rounding count as 0).
-  Eigen::SelfAdjointEigenSolver<Eigen::MatrixXd> eig(f.covariance);
+  Eigen::SelfAdjointEigenSolver<Eigen::MatrixXd> eig(cov_u);
   const Eigen::MatrixXd root = eig.eigenvectors() * eig.eigenvalues().cwiseMax(0.0).cwiseSqrt().asDiagonal();
   // Multivariate t with nu = n - p: theta_hat + L z sqrt(nu / chi2_nu). nu is
   // an integer here, so chi2_nu is a sum of nu squared normals.
@@ -71,7 +87,8 @@ MonteCarloResult ComputeMonteCarloBands(const BandRequest& r) {
       bool inside = true;
       for (Eigen::Index a = 0; a < p && inside; ++a) {
         const auto j = static_cast<size_t>(v.free_index[static_cast<size_t>(a)]);
-        const double si = v.theta_free_si[static_cast<size_t>(a)] + scale * step(a);
+        const double u = centre(a) + scale * step(a);
+        const double si = is_log[static_cast<size_t>(a)] ? std::exp(u) : u;
         const ParameterResult& q = f.parameters[j];
         const bool log = m.parameters[j].transform == ParameterTransform::kLog;
         inside = (si >= q.lower && si <= q.upper) && (!log || si > 0);

@@ -7,7 +7,8 @@
 //                   Var alpha = g^T Cov g / K_s^2 + (K/K_s^2)^2 Var K_s.
 //                 Confidence, prediction and simultaneous (Working–Hotelling /
 //                 Scheffé) bands.
-//   Monte Carlo   theta ~ N(theta_hat, Cov) (or multivariate t), K_s ~ N(K_s,
+//   Monte Carlo   theta ~ N(theta_hat, Cov) (or multivariate t) in the fit's
+//                 coordinates (ln theta for log-fitted scales), K_s ~ N(K_s,
 //                 sigma^2); percentile bands (may be asymmetric).
 //   bootstrap     residual or wild bootstrap with refits through porofit::Fit,
 //                 K_s drawn per replicate; percentile bands.
