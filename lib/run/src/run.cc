@@ -1,5 +1,6 @@
 #include "porofit/run/run.h"
 
+#include <algorithm>
 #include <atomic>
 #include <chrono>
 #include <ctime>
