@@ -195,6 +195,103 @@ TEST(Fit, RobustLossDownWeightsOneGrossOutlier) {
   EXPECT_GT(std::abs(b.residuals.raw[7]), 3.5e9);  // the outlier stays an outlier
 }
 
+// Standard errors of a robust fit must not carry the outlier's full squared
+// residual. The check against the clean-data fit is the behaviour asked of
+// Huber's M-estimator covariance (FitResult::variance_factor); the "naive"
+// form s^2 (J^T W J)^-1 with s^2 = SSR/(n-p) is rebuilt here by hand from the
+// analytic exp-modulus Jacobian (domain brief §3, M1) and must be inflated.
+TEST(Fit, RobustStandardErrorsStayNearTheCleanFitDespiteAGrossOutlier) {
+  const ModelSpec& m = Model("exp-modulus");
+  constexpr int kSeeds = 20, kOut = 6;
+  for (RobustLoss loss : {RobustLoss::kCauchy, RobustLoss::kHuber}) {
+    double ratio_robust[3] = {0, 0, 0}, ratio_naive[3] = {0, 0, 0};  // mean SE ratios to the clean fit
+    for (int k = 0; k < kSeeds; ++k) {
+      std::mt19937_64 rng(static_cast<std::uint64_t>(100 + k));
+      const FitData clean_data = Synthesize(m, {20, 8, 10}, Pressures(15), 0.2, &rng);
+      FitData dirty = clean_data;
+      dirty.y[kOut] *= 0.65;  // 35 % low: about 70 sigma
+      FitRequest clean;
+      clean.model = &m;
+      clean.data = clean_data;
+      FitRequest robust = clean;
+      robust.data = dirty;
+      robust.options.loss = loss;
+      robust.options.loss_scale = 2.0;
+      const FitResult c = Fit(clean), r = Fit(robust);
+      const std::string what = std::string(ToString(loss)) + " replicate " + std::to_string(k);
+      ASSERT_EQ(c.status, FitStatus::kConverged) << what;
+      ASSERT_EQ(r.status, FitStatus::kConverged) << what;
+      ASSERT_TRUE(r.covariance_ok) << what;
+
+      // Weights: the outlier almost ignored, the rest near 1 (a neighbour of
+      // the outlier at ~3 sigma may drop to ~0.3 under Cauchy).
+      ASSERT_EQ(r.residuals.robust_weight.size(), 15);
+      EXPECT_LT(r.residuals.robust_weight[kOut], 0.2) << what;
+      double mean_other = 0;
+      for (int i = 0; i < 15; ++i) {
+        if (i == kOut) continue;
+        EXPECT_GT(r.residuals.robust_weight[i], 0.25) << what << " point " << i;
+        mean_other += r.residuals.robust_weight[i] / 14;
+      }
+      // E[1/(1 + Z^2/4)] = 0.84 for Z ~ N(0, 1) (Cauchy weight at c = 2) [computed by quadrature].
+      EXPECT_GT(mean_other, 0.7) << what;
+
+      // The naive covariance at the same solution, by hand.
+      const double ki = r.parameters[0].estimate / 1e9, k0 = r.parameters[1].estimate / 1e9;
+      const double pc = r.parameters[2].estimate / 1e6;
+      Eigen::MatrixXd J(15, 3);
+      for (int i = 0; i < 15; ++i) {
+        const double p = dirty.x[static_cast<size_t>(i)] / 1e6, e = std::exp(-p / pc);
+        const double sw = std::sqrt(r.residuals.robust_weight[i]) / 0.2;
+        J.row(i) << (1 - e) * sw, e * sw, -(ki - k0) * p / (pc * pc) * e * sw;
+      }
+      const Eigen::MatrixXd naive = r.chi2_reduced * (J.transpose() * J).inverse();
+      for (int j = 0; j < 3; ++j) {
+        const std::string name = what + " " + m.parameters[static_cast<size_t>(j)].name;
+        const double f = m.parameters[static_cast<size_t>(j)].si_factor;
+        const double se_clean = c.parameters[static_cast<size_t>(j)].std_error / f;
+        const double se_robust = r.parameters[static_cast<size_t>(j)].std_error / f;
+        const double se_naive = std::sqrt(naive(j, j));
+        EXPECT_LT(se_robust / se_clean, 2.0) << name;  // single replicate: wide
+        EXPECT_GT(se_robust / se_clean, 0.5) << name;
+        EXPECT_GT(se_naive / se_clean, 2.0) << name;
+        ratio_robust[j] += se_robust / se_clean / kSeeds;
+        ratio_naive[j] += se_naive / se_clean / kSeeds;
+      }
+      EXPECT_LT(r.chi2_reduced_robust, r.chi2_reduced) << what;
+      EXPECT_GT(r.chi2_reduced, 10.0) << what;
+      // Cauchy bounds w r^2 by c^2, so its robust chi^2_nu stays near 1;
+      // Huber's w r^2 = c |r| grows with the outlier.
+      if (loss == RobustLoss::kCauchy) {
+        EXPECT_LT(r.chi2_reduced_robust, 3.0) << what;
+      }
+      EXPECT_GT(std::abs(r.residuals.standardized[kOut]), 5.0) << what;  // robust scale shows the outlier
+    }
+    for (int j = 0; j < 3; ++j) {
+      const std::string name = std::string(ToString(loss)) + " " + m.parameters[static_cast<size_t>(j)].name;
+      EXPECT_LT(ratio_robust[j], 1.5) << name;
+      EXPECT_GT(ratio_robust[j], 1 / 1.5) << name;
+      EXPECT_GT(ratio_naive[j], 3.0) << name;
+    }
+  }
+}
+
+TEST(Fit, PlainFitsHaveUnitWeightsAndEqualChiSquares) {
+  const ModelSpec& m = Model("exp-modulus");
+  std::mt19937_64 rng(24);
+  FitRequest req;
+  req.model = &m;
+  req.data = Synthesize(m, {20, 8, 10}, Pressures(15), 0.2, &rng);
+  const FitResult r = Fit(req);
+  ASSERT_EQ(r.status, FitStatus::kConverged);
+  ASSERT_EQ(r.residuals.robust_weight.size(), 15);
+  EXPECT_EQ(r.residuals.robust_weight.minCoeff(), 1.0);
+  EXPECT_EQ(r.residuals.robust_weight.maxCoeff(), 1.0);
+  EXPECT_EQ(r.chi2_reduced_robust, r.chi2_reduced);
+  EXPECT_EQ(r.variance_factor, r.chi2_reduced);
+  EXPECT_EQ(r.residual_scale, std::sqrt(r.chi2_reduced));
+}
+
 TEST(Fit, CovarianceBackendsAgreeToRounding) {
   const ModelSpec& m = Model("exp-modulus");
   std::mt19937_64 rng(14);

@@ -702,21 +702,62 @@ FitResult Fit(const FitRequest& req) {
     r.bic = m2lnl + k * std::log(n);
   }
 
-  // ---- covariance in solver coordinates, then exactly to physical parameters.
+  // ---- residual scale. Plain least squares: s^2 = SSR/(n-p). Robust loss:
+  // with the per-point objective (1/2) rho(r^2), psi(r) = rho'(r^2) r and
+  // psi'(r) = rho'(r^2) + 2 r^2 rho''(r^2); IRLS weight w = psi(r)/r = rho'(r^2).
+  // Robust scale s_psi^2 = [sum psi^2/(n-p)] / [mean psi']^2 and Huber's
+  // small-sample factor kappa = 1 + (p/n) var(psi')/mean(psi')^2 (Huber 1981,
+  // Robust Statistics, §7.6 [from memory]); see FitResult::variance_factor.
   const double s2 = r.dof > 0 ? r.ssr / r.dof : kNaN;
-  if (opt.covariance && s.nf > 0) {
-    // Jacobian the covariance is built from: under a robust loss, rows carry
-    // sqrt(rho'(r_i^2)) (Ceres' corrector; Huber and Cauchy have rho'' <= 0).
-    Eigen::MatrixXd Jc = J;
-    if (loss) {
-      for (int i = 0; i < s.n; ++i) {
-        double rho[3];
-        loss->Evaluate(res(i) * res(i), rho);
-        Jc.row(i) *= std::sqrt(std::max(rho[1], 0.0));
-      }
+  double scale2 = s2;         // residual variance in sigma units (studentised residuals)
+  double variance_factor = s2;  // multiplies the unscaled inverse when scale_covariance
+  Eigen::VectorXd weight;     // IRLS weights; empty for plain least squares
+  r.chi2_reduced_robust = r.chi2_reduced;
+  if (loss) {
+    weight.resize(s.n);
+    double sum_psi2 = 0, sum_dpsi = 0, sum_dpsi2 = 0, sum_wr2 = 0;
+    for (int i = 0; i < s.n; ++i) {
+      const double r2 = res(i) * res(i);
+      double rho[3];
+      loss->Evaluate(r2, rho);
+      const double psi = rho[1] * res(i), dpsi = rho[1] + 2 * r2 * rho[2];
+      weight(i) = rho[1];
+      sum_wr2 += rho[1] * r2;
+      sum_psi2 += psi * psi;
+      sum_dpsi += dpsi;
+      sum_dpsi2 += dpsi * dpsi;
     }
+    const double n = s.n, w_dof = weight.sum() - s.nf;
+    r.chi2_reduced_robust = w_dof > 0 ? sum_wr2 / w_dof : kNaN;
+    const double mean_dpsi = sum_dpsi / n;
+    const double var_dpsi = std::max(sum_dpsi2 / n - mean_dpsi * mean_dpsi, 0.0);
+    if (r.dof > 0 && mean_dpsi > 0) {
+      scale2 = sum_psi2 / r.dof / (mean_dpsi * mean_dpsi);
+      const double kappa = 1 + s.nf / n * var_dpsi / (mean_dpsi * mean_dpsi);
+      variance_factor = kappa * kappa * scale2;
+    } else {
+      scale2 = variance_factor = kNaN;
+      if (r.dof > 0)
+        r.warnings.push_back("mean psi' = " + FormatNumber(mean_dpsi) +
+                             " is not positive: most points lie in the loss's descending part, no robust scale");
+    }
+  }
+  r.residual_scale = std::sqrt(scale2);
+  r.variance_factor = opt.scale_covariance ? variance_factor : 1.0;
+
+  // ---- covariance in solver coordinates, then exactly to physical parameters.
+  if (opt.covariance && s.nf > 0) {
+    // Jacobian the covariance is built from. Plain: J, times s^2 when scaled.
+    // Robust and scaled: Huber's form, (J^T J)^-1 times the variance factor.
+    // Robust with absolute sigma: the IRLS-weighted (J^T W J)^-1, rows
+    // carrying sqrt(w_i) (Ceres' corrector; Huber and Cauchy have rho'' <= 0).
+    const bool weighted_rows = loss && !opt.scale_covariance;
+    Eigen::MatrixXd Jc = J;
+    if (weighted_rows)
+      for (int i = 0; i < s.n; ++i) Jc.row(i) *= std::sqrt(std::max(weight(i), 0.0));
+    ceres::LossFunction* cov_loss = weighted_rows ? loss.get() : nullptr;
     CovarianceOut cov = opt.covariance_backend == CovarianceBackend::kCeres
-                            ? CeresCovariance(s, Jc, u.data(), loss.get(), opt.min_reciprocal_condition)
+                            ? CeresCovariance(s, Jc, u.data(), cov_loss, opt.min_reciprocal_condition)
                             : EigenCovariance(Jc, opt.min_reciprocal_condition);
     if (!cov.ok) {
       cov = EigenCovariance(Jc, opt.min_reciprocal_condition);
@@ -731,7 +772,7 @@ FitResult Fit(const FitRequest& req) {
       dtheta(k) = (s.log[j] ? theta[j] : 1.0) * m.parameters[j].si_factor;
     }
     r.covariance = dtheta.asDiagonal() * cov_u * dtheta.asDiagonal();
-    if (opt.scale_covariance) r.covariance *= s2;
+    if (opt.scale_covariance) r.covariance *= variance_factor;
     r.covariance_ok = !r.rank_deficient && r.covariance.allFinite();
     r.correlation.resize(s.nf, s.nf);
     for (int a = 0; a < s.nf; ++a) {
@@ -788,7 +829,8 @@ FitResult Fit(const FitRequest& req) {
   d.sigma = s.sigma * m.y_si_factor;
   d.raw = raw_si;
   d.leverage = Leverages(J);
-  d.standardized = StudentizedResiduals(d.raw, d.sigma, d.leverage, std::sqrt(s2));
+  d.standardized = StudentizedResiduals(d.raw, d.sigma, d.leverage, std::sqrt(scale2));
+  d.robust_weight = loss ? weight : Eigen::VectorXd::Ones(s.n);
   std::vector<int> order(s.n);
   std::iota(order.begin(), order.end(), 0);
   std::stable_sort(order.begin(), order.end(), [&](int a, int b) { return s.x[a] < s.x[b]; });

@@ -29,8 +29,10 @@ std::string_view ToString(CovarianceBackend b);
 
 struct FitOptions {
   /// Robust loss on the standardised residuals r_i/sigma_i. Standard errors
-  /// of a robust fit come from the robustified normal equations at the
-  /// solution (Ceres' convention) and are approximate.
+  /// of a robust fit use Huber's M-estimator covariance with a robust
+  /// residual scale when scale_covariance is true, the IRLS-weighted normal
+  /// equations otherwise (FitResult::variance_factor); both are asymptotic
+  /// and approximate for small n.
   RobustLoss loss = RobustLoss::kNone;
   /// Loss scale in standardised-residual units (sigma multiples): residuals
   /// beyond about this many sigma are down-weighted. Must be > 0.

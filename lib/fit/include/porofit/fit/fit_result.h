@@ -37,13 +37,20 @@ struct ResidualDiagnostics {
   Eigen::VectorXd fitted;        ///< SI
   Eigen::VectorXd sigma;         ///< SI weights' sigma_i (1 if none given, in working units scaled to SI)
   Eigen::VectorXd raw;           ///< observed - fitted, SI
-  Eigen::VectorXd standardized;  ///< raw / (s * sigma_i * sqrt(1 - h_ii)), s^2 = SSR/(n-p) (internally studentised; NaN where h_ii = 1)
+  Eigen::VectorXd standardized;  ///< raw / (s * sigma_i * sqrt(1 - h_ii)), s = FitResult::residual_scale (internally studentised; NaN where h_ii = 1)
   Eigen::VectorXd leverage;      ///< h_ii, diagonal of the weighted hat matrix
   int runs = 0;                  ///< number of sign runs of the residuals in x order (zeros dropped)
   int n_positive = 0, n_negative = 0;
   double runs_z = 0;             ///< Wald–Wolfowitz normal statistic
   double runs_p = 0;             ///< two-sided p-value (normal approximation; weak when n < 10; NaN if one sign only)
   double durbin_watson = 0;      ///< sum (e_i - e_{i-1})^2 / sum e_i^2, weighted residuals in x order
+  /// Effective weight of each point in the fit, w_i = rho'(r_i^2) = psi(r_i)/r_i
+  /// for the standardised residual r_i = raw_i / sigma_i: the weight of the
+  /// final iteratively-reweighted least-squares step. 1 for every point of a
+  /// plain least-squares fit; under a robust loss a point far outside
+  /// FitOptions::loss_scale has a weight near 0 (Cauchy: 1/(1 + (r/c)^2);
+  /// Huber: min(1, c/|r|)).
+  Eigen::VectorXd robust_weight;
 };
 
 struct FitResult {
@@ -69,7 +76,31 @@ struct FitResult {
   int p = 0;              ///< free parameters
   int dof = 0;            ///< n - p
   double ssr = 0;         ///< weighted sum of squared residuals, sum (r_i/sigma_i)^2 (dimensionless when sigma given)
-  double chi2_reduced = 0;  ///< ssr / dof
+  double chi2_reduced = 0;  ///< ssr / dof (plain SSR, also for robust fits)
+  /// chi^2_nu from the robust weights: sum w_i r_i^2 / (sum w_i - p), with
+  /// w_i = ResidualDiagnostics::robust_weight; a down-weighted outlier then
+  /// neither adds its full r_i^2 nor counts as a degree of freedom (Cauchy
+  /// bounds w r^2 by c^2; Huber's w r^2 = c |r| still grows with |r|). Equal to
+  /// chi2_reduced for plain least squares; NaN if sum w_i <= p.
+  double chi2_reduced_robust = 0;
+  /// Residual scale s in standardised-residual (sigma) units, used for the
+  /// studentised residuals. Plain: s^2 = SSR/(n-p). Robust loss: the
+  /// M-estimator scale s^2 = [sum psi(r_i)^2 / (n-p)] / [(1/n) sum psi'(r_i)]^2
+  /// (Huber 1981, Robust Statistics, Wiley, §7.6 [from memory]), in which an
+  /// outlier enters through its bounded psi, not its full r^2. NaN if n = p or
+  /// (robust) if mean psi' <= 0.
+  double residual_scale = 0;
+  /// The factor multiplying the unscaled inverse in `covariance`
+  /// (1 when FitOptions::scale_covariance is false):
+  ///  - plain least squares: s^2 = SSR/(n-p), Cov = s^2 (J^T W J)^-1;
+  ///  - robust loss: Huber's (1981, §7.6, eq. 6.5 [from memory]) asymptotic
+  ///    covariance of an M-estimator,
+  ///      Cov = kappa^2 [sum psi^2/(n-p)] / [(1/n) sum psi']^2 (J^T W J)^-1,
+  ///      kappa = 1 + (p/n) var(psi') / mean(psi')^2,
+  ///    with J^T W J built from the sigma weights only (no loss weights).
+  /// With absolute sigma (scale_covariance false) a robust fit's covariance
+  /// is the IRLS-weighted (J^T W W_rob J)^-1, W_rob = diag(robust_weight).
+  double variance_factor = 0;
   double rmse = 0;        ///< sqrt(mean raw residual^2), SI
   double r_squared = 0;   ///< 1 - SSR/SS_tot, SS_tot = sum w_i (y_i - ybar_w)^2, w_i = 1/sigma_i^2
   /// Information criteria from the Gaussian log-likelihood, dropping the

@@ -21,8 +21,11 @@
 //  - A fixed_by_default parameter without a fixed value or start is held at
 //    the heuristic's value (else the first extra start's).
 //  - Covariance at the solution: see FitOptions::covariance_backend and
-//    FitResult::covariance_method; s^2 = SSR/(n-p) uses the plain
-//    (non-robust) SSR.
+//    FitResult::covariance_method. Plain least squares scales by
+//    s^2 = SSR/(n-p); a robust loss uses Huber's (1981) M-estimator form
+//    with a robust scale instead, so an outlier's full squared residual does
+//    not inflate the standard errors (FitResult::variance_factor), and
+//    reports each point's IRLS weight (ResidualDiagnostics::robust_weight).
 #include <map>
 #include <optional>
 #include <string>
