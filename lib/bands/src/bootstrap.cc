@@ -54,8 +54,9 @@ BootstrapResult ComputeBootstrapBands(const BandRequest& r) {
   base.options.parameter_tolerance = r.options.refit_tolerance;
   for (auto& [name, s] : base.settings) s.start.reset();
 
-  // Uninitialised: every used entry is written (no memset of megabytes).
-  std::unique_ptr<double[]> kd(new double[static_cast<size_t>(B) * G]), ad(new double[static_cast<size_t>(B) * G]);
+  // Row-major K of every replicate; uninitialised: every used row is written.
+  std::unique_ptr<double[]> kd(new double[static_cast<size_t>(B) * G]);
+  std::vector<double> ks_of(static_cast<size_t>(B), 1.0);
   std::vector<char> use(static_cast<size_t>(B), 0);
   std::vector<char> why(static_cast<size_t>(B), 0);  // 1 status, 2 curve
 
@@ -75,16 +76,11 @@ BootstrapResult ComputeBootstrapBands(const BandRequest& r) {
     }
     std::vector<double> th(m.parameters.size());
     for (size_t j = 0; j < th.size(); ++j) th[j] = fr.parameters[j].estimate / m.parameters[j].si_factor;
-    std::vector<double> k(G);
-    if (!detail::CurveAt(m, th.data(), r.grid.pressure, k.data()) || !(ks > 0)) {
+    if (!detail::CurveAt(m, th.data(), r.grid.pressure, kd.get() + row * G) || !(ks > 0)) {
       why[row] = 2;
       return;
     }
-    // Grid-major storage: each grid point's replicates are contiguous.
-    for (size_t g = 0; g < G; ++g) {
-      kd[g * static_cast<size_t>(B) + row] = k[g];
-      ad[g * static_cast<size_t>(B) + row] = 1.0 - k[g] / ks;
-    }
+    ks_of[row] = ks;
     use[row] = 1;
   });
 
@@ -100,8 +96,8 @@ BootstrapResult ComputeBootstrapBands(const BandRequest& r) {
     out.message = "every bootstrap refit failed";
     return out;
   }
-  detail::PercentileBand(kd.get(), G, use, r.options.confidence, r.options.threads, out.k);
-  detail::PercentileBand(ad.get(), G, use, r.options.confidence, r.options.threads, out.alpha);
+  detail::PercentileBands(kd.get(), ks_of.data(), use, G, r.options.confidence, r.options.threads, out.k,
+                          out.alpha);
   out.computed = true;
   return out;
 }

@@ -197,29 +197,37 @@ void Percentiles3(std::vector<double>& v, double tail, double& lo, double& mid, 
   }
 }
 
-void PercentileBand(const double* draws, size_t grid, const std::vector<char>& use, double confidence,
-                    int threads, Band& out) {
+void PercentileBands(const double* k, const double* ks, const std::vector<char>& use, size_t grid,
+                     double confidence, int threads, Band& k_out, Band& alpha_out) {
   const size_t rows = use.size();
-  out.estimate.assign(grid, kNaN);
-  out.lower.assign(grid, kNaN);
-  out.upper.assign(grid, kNaN);
+  for (Band* b : {&k_out, &alpha_out}) {
+    b->estimate.assign(grid, kNaN);
+    b->lower.assign(grid, kNaN);
+    b->upper.assign(grid, kNaN);
+  }
   const double tail = 0.5 * (1.0 - confidence);
-  const int blocks = static_cast<int>((grid + 15) / 16);
-  const bool all = std::all_of(use.begin(), use.end(), [](char u) { return u != 0; });
+  constexpr size_t kBlock = 16;
+  const int blocks = static_cast<int>((grid + kBlock - 1) / kBlock);
   ParallelFor(blocks, threads, [&](int b) {
-    std::vector<double> col;
-    col.reserve(rows);
-    const size_t g0 = static_cast<size_t>(b) * 16, g1 = std::min(grid, g0 + 16);
-    for (size_t g = g0; g < g1; ++g) {
-      const double* c = draws + g * rows;
-      if (all) {
-        col.assign(c, c + rows);
-      } else {
-        col.clear();
-        for (size_t r = 0; r < rows; ++r)
-          if (use[r]) col.push_back(c[r]);
+    const size_t g0 = static_cast<size_t>(b) * kBlock, g1 = std::min(grid, g0 + kBlock), w = g1 - g0;
+    std::vector<std::vector<double>> ck(w), ca(w);
+    for (size_t c = 0; c < w; ++c) {
+      ck[c].reserve(rows);
+      ca[c].reserve(rows);
+    }
+    for (size_t r = 0; r < rows; ++r) {
+      if (!use[r]) continue;
+      const double* row = k + r * grid + g0;
+      const double inv = 1.0 / ks[r];
+      for (size_t c = 0; c < w; ++c) {
+        ck[c].push_back(row[c]);
+        ca[c].push_back(1.0 - row[c] * inv);
       }
-      Percentiles3(col, tail, out.lower[g], out.estimate[g], out.upper[g]);
+    }
+    for (size_t c = 0; c < w; ++c) {
+      const size_t g = g0 + c;
+      Percentiles3(ck[c], tail, k_out.lower[g], k_out.estimate[g], k_out.upper[g]);
+      Percentiles3(ca[c], tail, alpha_out.lower[g], alpha_out.estimate[g], alpha_out.upper[g]);
     }
   });
 }

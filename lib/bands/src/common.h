@@ -58,10 +58,12 @@ class TQuantileCurve {
   std::vector<double> coef_;
 };
 
-// Percentile band from a grid-major matrix (draws[g * rows + d]), using the
-// draws with use[d] = true; grid points are processed on `threads` threads.
-void PercentileBand(const double* draws, size_t grid, const std::vector<char>& use, double confidence,
-                    int threads, Band& out);
+// Percentile bands of K and alpha = 1 - K/K_s from a draws x grid matrix of
+// K (row-major: row d holds K at every grid point for draw d) and the K_s of
+// each draw, using the rows with use[d] = true. Columns are gathered in blocks
+// of 16 grid points (cache-friendly) and processed on `threads` threads.
+void PercentileBands(const double* k, const double* ks, const std::vector<char>& use, size_t grid,
+                     double confidence, int threads, Band& k_out, Band& alpha_out);
 
 // Lower, median and upper percentiles of v (reordered), one pass of selections.
 void Percentiles3(std::vector<double>& v, double tail, double& lo, double& mid, double& hi);

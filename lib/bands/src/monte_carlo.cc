@@ -48,11 +48,11 @@ MonteCarloResult ComputeMonteCarloBands(const BandRequest& r) {
   const bool use_t = out.distribution == McDistribution::kStudentT && v.scaled && f.dof > 0;
   const int nu = f.dof;
 
-  // Grid-major storage (kd[g * D + d]) so each grid point's draws are
-  // contiguous for the percentiles; draws are made in blocks of 64 and each
-  // block is transposed through a small local buffer.
-  // Uninitialised: every used entry is written (no memset of megabytes).
-  std::unique_ptr<double[]> kd(new double[static_cast<size_t>(D) * G]), ad(new double[static_cast<size_t>(D) * G]);
+  // Row-major K of every draw (alpha is formed while gathering columns, so
+  // only one draws x grid array is allocated); uninitialised: every used row
+  // is written.
+  std::unique_ptr<double[]> kd(new double[static_cast<size_t>(D) * G]);
+  std::vector<double> ks_of(static_cast<size_t>(D), 1.0);
   std::vector<char> use(static_cast<size_t>(D), 0);
   std::vector<char> why(static_cast<size_t>(D), 0);  // 1 grain, 2 bounds, 3 curve
   constexpr int kBlock = 64;
@@ -60,7 +60,6 @@ MonteCarloResult ComputeMonteCarloBands(const BandRequest& r) {
 
   detail::ParallelFor(blocks, r.options.threads, [&](int blk) {
     const int d0 = blk * kBlock, d1 = std::min(D, d0 + kBlock);
-    std::vector<double> kbuf(static_cast<size_t>(kBlock) * G), ks_of(static_cast<size_t>(kBlock));
     std::vector<double> th = v.theta_working;
     Eigen::VectorXd z(p), step(p);
     for (int d = d0; d < d1; ++d) {
@@ -77,8 +76,7 @@ MonteCarloResult ComputeMonteCarloBands(const BandRequest& r) {
       }
       const double ks = r.k_s + r.sigma_k_s * rng.Normal();
       const auto row = static_cast<size_t>(d);
-      const auto local = static_cast<size_t>(d - d0);
-      ks_of[local] = ks;
+      ks_of[row] = ks;
       if (!(ks > 0)) {
         why[row] = 1;
         continue;
@@ -98,21 +96,11 @@ MonteCarloResult ComputeMonteCarloBands(const BandRequest& r) {
         why[row] = 2;
         continue;
       }
-      if (!detail::CurveAt(m, th.data(), r.grid.pressure, kbuf.data() + local * G)) {
+      if (!detail::CurveAt(m, th.data(), r.grid.pressure, kd.get() + row * G)) {
         why[row] = 3;
         continue;
       }
       use[row] = 1;
-    }
-    for (size_t g = 0; g < G; ++g) {
-      double* kcol = kd.get() + g * static_cast<size_t>(D);
-      double* acol = ad.get() + g * static_cast<size_t>(D);
-      for (int d = d0; d < d1; ++d) {
-        const auto local = static_cast<size_t>(d - d0);
-        const double k = kbuf[local * G + g];
-        kcol[d] = k;
-        acol[d] = 1.0 - k / ks_of[local];
-      }
     }
   });
 
@@ -129,8 +117,8 @@ MonteCarloResult ComputeMonteCarloBands(const BandRequest& r) {
     out.message = "every Monte Carlo draw was rejected as unphysical";
     return out;
   }
-  detail::PercentileBand(kd.get(), G, use, r.options.confidence, r.options.threads, out.k);
-  detail::PercentileBand(ad.get(), G, use, r.options.confidence, r.options.threads, out.alpha);
+  detail::PercentileBands(kd.get(), ks_of.data(), use, G, r.options.confidence, r.options.threads, out.k,
+                          out.alpha);
   out.computed = true;
   return out;
 }
