@@ -5,6 +5,7 @@
 //                       (one block, analytic Jacobian, no covariance, no checks)
 //   BM_FixedParameter   K_0 held fixed: SubsetManifold (arg 1) vs removed (arg 0)
 //   BM_Fit/<model>/...  porofit::Fit with covariance and residual diagnostics
+//                       (".../unbounded-first": FitOptions::unbounded_first)
 //   BM_Covariance*      the covariance step alone (ceres::Covariance vs Eigen SVD)
 //   BM_FitBatch         fits per second over 1,000 different samples
 // The data are invented: P = 2..60 MPa (15 points), Gaussian noise, fixed seed.
@@ -63,13 +64,15 @@ FitRequest MakeRequest(const ModelSpec& m, const Case& c, std::mt19937_64& rng) 
 
 const ModelSpec& Model(const char* id) { return *ModelRegistry::Builtin().Find(id); }
 
-void BM_Fit(benchmark::State& state, const Case& c, int multistart, CovarianceBackend backend, bool covariance) {
+void BM_Fit(benchmark::State& state, const Case& c, int multistart, CovarianceBackend backend, bool covariance,
+            bool unbounded_first) {
   const ModelSpec& m = Model(c.id);
   std::mt19937_64 rng(20261201);
   FitRequest req = MakeRequest(m, c, rng);
   req.options.multistart = multistart;
   req.options.covariance_backend = backend;
   req.options.covariance = covariance;
+  req.options.unbounded_first = unbounded_first;
   int converged = 0;
   for (auto _ : state) {
     FitResult r = Fit(req);
@@ -282,13 +285,15 @@ int Register() {
   for (const Case& c : Cases()) {
     const std::string id = c.id;
     benchmark::RegisterBenchmark(("BM_Fit/" + id + "/multistart1/ceres-cov").c_str(), BM_Fit, c, 1,
-                                 CovarianceBackend::kCeres, true);
+                                 CovarianceBackend::kCeres, true, false);
     benchmark::RegisterBenchmark(("BM_Fit/" + id + "/multistart1/eigen-cov").c_str(), BM_Fit, c, 1,
-                                 CovarianceBackend::kEigen, true);
+                                 CovarianceBackend::kEigen, true, false);
     benchmark::RegisterBenchmark(("BM_Fit/" + id + "/multistart1/no-cov").c_str(), BM_Fit, c, 1,
-                                 CovarianceBackend::kEigen, false);
+                                 CovarianceBackend::kEigen, false, false);
     benchmark::RegisterBenchmark(("BM_Fit/" + id + "/multistart8/eigen-cov").c_str(), BM_Fit, c, 8,
-                                 CovarianceBackend::kEigen, true);
+                                 CovarianceBackend::kEigen, true, false);
+    benchmark::RegisterBenchmark(("BM_Fit/" + id + "/multistart1/eigen-cov/unbounded-first").c_str(), BM_Fit, c, 1,
+                                 CovarianceBackend::kEigen, true, true);
   }
   benchmark::RegisterBenchmark("BM_FitBatch/exp-modulus/1000", BM_FitBatch)->Arg(1)->Arg(8)->Unit(benchmark::kMillisecond);
   return 0;

@@ -545,31 +545,73 @@ FitResult Fit(const FitRequest& req) {
 
   std::vector<double> u(std::max(s.nf, 1));
   std::vector<double> theta(s.np);
-  // Bounds go to Ceres as a box on the solver coordinates. Ceres then runs a
-  // line search on each step, which costs time (docs/benchmarks.md) but was
-  // measured to matter: solving without the box first and re-solving only
-  // when a bound is violated sends NIST StRD BoxBOD Start 1 to the plateau.
-  ceres::Problem bounded(BorrowingProblemOptions());
-  if (s.nf > 0) {
-    if (loss) {
-      for (int i = 0; i < s.n; ++i) {
-        point_costs.push_back(std::make_unique<WeightedResiduals>(s, i, 1));
-        bounded.AddResidualBlock(point_costs.back().get(), loss.get(), u.data());
-      }
-    } else {
-      bounded.AddResidualBlock(&cost, nullptr, u.data());
+  // Box on the solver coordinates. A kLog parameter's lower bound of 0 and
+  // infinite bounds are not passed on: they cannot bind.
+  std::vector<double> box_lo(static_cast<size_t>(s.nf), -kInf), box_hi(static_cast<size_t>(s.nf), kInf);
+  bool has_box = false, positivity_only = true;
+  for (int k = 0; k < s.nf; ++k) {
+    const int j = s.free_index[k];
+    double lo = s.lower[j], hi = s.upper[j];
+    if (s.log[j]) {
+      lo = lo > 0 ? std::log(lo) : -kInf;
+      hi = hi < kInf ? std::log(hi) : kInf;
     }
-    for (int k = 0; k < s.nf; ++k) {
-      const int j = s.free_index[k];
-      double lo = s.lower[j], hi = s.upper[j];
-      if (s.log[j]) {
-        lo = lo > 0 ? std::log(lo) : -kInf;
-        hi = hi < kInf ? std::log(hi) : kInf;
-      }
-      if (std::isfinite(lo)) bounded.SetParameterLowerBound(u.data(), k, lo);
-      if (std::isfinite(hi)) bounded.SetParameterUpperBound(u.data(), k, hi);
-    }
+    box_lo[static_cast<size_t>(k)] = lo;
+    box_hi[static_cast<size_t>(k)] = hi;
+    has_box = has_box || std::isfinite(lo) || std::isfinite(hi);
+    positivity_only = positivity_only && !std::isfinite(hi) && (!std::isfinite(lo) || lo == 0.0);
   }
+  const bool open_first = opt.unbounded_first && has_box && positivity_only;
+  auto add_blocks = [&](ceres::Problem& problem) {
+    if (loss) {
+      if (point_costs.empty())
+        for (int i = 0; i < s.n; ++i) point_costs.push_back(std::make_unique<WeightedResiduals>(s, i, 1));
+      for (int i = 0; i < s.n; ++i) problem.AddResidualBlock(point_costs[static_cast<size_t>(i)].get(), loss.get(), u.data());
+    } else {
+      problem.AddResidualBlock(&cost, nullptr, u.data());
+    }
+  };
+  // A bounded Ceres problem runs a line search on every step. So, with
+  // FitOptions::unbounded_first, when the box
+  // is only positivity (lower bounds of 0, no upper bounds; the catalogue's
+  // moduli and compliances), each start is first solved without it; that run
+  // is kept if it converged inside the box with every free coordinate still
+  // identified (see identified), else the start is solved again with the box.
+  // Other boxes (e.g. an exponent in [0, 1]) are solved bounded directly: an
+  // unbounded run there can wander where the model is undefined, and Ceres
+  // then logs to stderr. NIST StRD BoxBOD Start 1 shows why
+  // the second test is needed: unbounded, it converges onto the b2 -> infinity
+  // plateau, where ln P_close no longer moves the model.
+  ceres::Problem open_problem(BorrowingProblemOptions());
+  std::unique_ptr<ceres::Problem> bounded;
+  auto bounded_problem = [&]() -> ceres::Problem& {
+    if (!bounded) {
+      bounded = std::make_unique<ceres::Problem>(BorrowingProblemOptions());
+      add_blocks(*bounded);
+      for (int k = 0; k < s.nf; ++k) {
+        if (std::isfinite(box_lo[static_cast<size_t>(k)])) bounded->SetParameterLowerBound(u.data(), k, box_lo[static_cast<size_t>(k)]);
+        if (std::isfinite(box_hi[static_cast<size_t>(k)])) bounded->SetParameterUpperBound(u.data(), k, box_hi[static_cast<size_t>(k)]);
+      }
+    }
+    return *bounded;
+  };
+  if (s.nf > 0) add_blocks(open_problem);
+  // A free coordinate is identified at u when the column-equilibrated weighted
+  // Jacobian has full column rank there (the covariance's rank test).
+  std::vector<double> check_res, check_jac;
+  auto identified = [&]() {
+    check_res.resize(static_cast<size_t>(s.n));
+    check_jac.resize(static_cast<size_t>(s.n) * static_cast<size_t>(s.nf));
+    if (!cost.EvaluateAt(u.data(), check_res.data(), check_jac.data())) return false;
+    const Eigen::Map<const Eigen::Matrix<double, Eigen::Dynamic, Eigen::Dynamic, Eigen::RowMajor>> Jm(
+        check_jac.data(), s.n, s.nf);
+    return EigenCovariance(Jm, opt.min_reciprocal_condition).ok;
+  };
+  auto inside_box = [&]() {
+    for (int k = 0; k < s.nf; ++k)
+      if (!(u[static_cast<size_t>(k)] >= box_lo[static_cast<size_t>(k)] && u[static_cast<size_t>(k)] <= box_hi[static_cast<size_t>(k)])) return false;
+    return true;
+  };
   auto model_error = [&]() -> std::string {
     if (!cost.error().empty()) return cost.error();
     for (const auto& c : point_costs)
@@ -614,7 +656,11 @@ FitResult Fit(const FitRequest& req) {
         continue;
       }
       ceres::Solver::Summary sum;
-      ceres::Solve(so, &bounded, &sum);
+      ceres::Solve(so, open_first || !has_box ? &open_problem : &bounded_problem(), &sum);
+      if (open_first && !(sum.termination_type == ceres::CONVERGENCE && inside_box() && identified())) {
+        ToSolver(s, st.data(), u.data());
+        ceres::Solve(so, &bounded_problem(), &sum);
+      }
       run.iterations = static_cast<int>(sum.iterations.size()) - 1;
       run.termination = sum.termination_type;
       run.cost = sum.final_cost;

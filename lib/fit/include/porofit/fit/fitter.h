@@ -9,7 +9,8 @@
 // How it works (lib/fit/src/fitter.cc):
 //  - Data and settings are converted to the model's working units; the
 //    solver works on the free parameters only (fixed ones are removed from
-//    its vector), as u = ln(theta) for kLog parameters, with bounds on u.
+//    its vector), as u = ln(theta) for kLog parameters, with bounds on u
+//    (only finite ones that can bind; see FitOptions::unbounded_first).
 //  - Residuals r_i = (y_i - f(x_i)) / sigma_i with the exact Jacobian of
 //    ModelSpec::value_and_gradient. Plain least squares is one Ceres residual
 //    block for all points; a robust loss uses one block per point, because
