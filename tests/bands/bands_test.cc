@@ -1,7 +1,10 @@
 #include "porofit/bands/bands.h"
 
+#include "porofit/bands/random.h"
+
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <cmath>
 #include <random>
 
@@ -288,6 +291,36 @@ TEST(MonteCarloBands, AreIdenticalForAnyThreadCountAndCountRejectedDraws) {
   bool noted = false;
   for (const auto& n : all.notes) noted = noted || n.find("draws rejected") != std::string::npos;
   EXPECT_TRUE(noted);
+}
+
+TEST(MonteCarloBands, AreTheType7PercentilesOfTheReproducedDraws) {
+  // K = K_0 with K_0 ~ N(10, 0.5^2) GPa: each draw i is 10 + 0.5 z_i from
+  // stream (seed, Monte Carlo, i), whose first normal is z_i (the second is
+  // the K_s draw). Rebuilding the draws here and taking numpy-style (type 7)
+  // percentiles of the sorted values must give the band exactly.
+  const ConstantCurve c(10.0, 0.5, false);
+  BandRequest r = c.Request(37.0, 0.0);
+  r.options.monte_carlo_draws = 1001;
+  r.options.monte_carlo_distribution = McDistribution::kNormal;
+  const MonteCarloResult mc = ComputeMonteCarloBands(r);
+  ASSERT_TRUE(mc.computed) << mc.message;
+  std::vector<double> k;
+  for (int d = 0; d < 1001; ++d) {
+    Stream s(r.options.seed, 1, static_cast<std::uint64_t>(d));
+    k.push_back(10e9 + 0.5e9 * s.Normal());
+  }
+  std::sort(k.begin(), k.end());
+  auto type7 = [&](double q) {
+    const double h = 1000 * q;
+    const auto lo = static_cast<size_t>(std::floor(h));
+    return k[lo] + (h - static_cast<double>(lo)) * (k[lo + 1] - k[lo]);
+  };
+  for (size_t g = 0; g < 2; ++g) {
+    EXPECT_NEAR(mc.k.lower[g], type7(0.025), 1e-6 * 1e9);
+    EXPECT_NEAR(mc.k.estimate[g], k[500], 1e-6 * 1e9);
+    EXPECT_NEAR(mc.k.upper[g], type7(0.975), 1e-6 * 1e9);
+    EXPECT_NEAR(mc.alpha.lower[g], 1 - type7(0.975) / 37e9, 1e-12);
+  }
 }
 
 // ---------------------------------------------------------------- bootstrap
