@@ -45,7 +45,7 @@ bool CurveAt(const ModelSpec& m, const double* theta, const std::vector<double>&
 // dof nu = nu_fit / u, u in [0, 1] (Welch–Satterthwaite gives nu >= nu_fit).
 // Boost's quantile costs microseconds per call, and every grid point has its
 // own nu; a Chebyshev interpolant in u built from 24 exact quantiles is
-// accurate to about 1e-12 for nu_fit >= 2 (checked in tests against the exact
+// within 1e-9 of the exact quantile for nu_fit >= 2 (tests check it against the exact
 // quantile) and costs nanoseconds. nu_fit < 2 or infinite: exact calls.
 class TQuantileCurve {
  public:
