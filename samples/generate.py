@@ -164,6 +164,18 @@ vp_2551, vs_2551 = velocities(closure(p_2551, 16.0, 9.0, 20.0), closure(p_2551, 
 vp_2551, vs_2551 = noisy(vp_2551, 0.006), noisy(vs_2551, 0.012)
 rows_2551 = [[fmt(p + 2.0, 0), fmt(a, 3), fmt(b, 3)] for p, a, b in zip(p_2551, vp_2551, vs_2551)]
 
+# ------------------------------------------------ grain moduli and VTI (invented)
+# QV14-2318H (horizontal shaly sandstone): drained static VTI stiffnesses at
+# three differential pressures, invented to be consistent with its K curve
+# (isotropic-equivalent K = (2 C11 + C33 + 2 C12 + 4 C13)/9 close to the fit).
+vti_2318 = [  # P MPa, C11, C12, C13, C33 GPa
+    [10, 19.0, 5.2, 4.6, 14.8],
+    [25, 22.4, 6.1, 5.5, 18.2],
+    [40, 23.6, 6.5, 5.9, 19.6],
+]
+vti_rows_2318 = "".join(
+    f"        - [{p}, {a:.1f}, {b:.1f}, {c:.1f}, {d:.1f}]\n" for p, a, b, c, d in vti_2318)
+
 # ---------------------------------------------------------------- the study
 study = f"""# =====================================================================
 #  INVENTED DEMONSTRATION STUDY - NOT REAL DATA
@@ -185,6 +197,35 @@ defaults:
     multistart: 8
     seed: {SEED}
   models: [exp-modulus, exp-compliance]
+  # Bands of K and alpha = 1 - K/K_s: delta method by default, on 61 points
+  # spanning the data (widened by 10 %, so the ends are flagged as extrapolated).
+  bands:
+    confidence: 0.95
+    methods: [delta]
+    seed: {SEED}
+    grid: {{count: 61}}
+
+# A mineral added to the built-in table (values for the demonstration).
+minerals:
+  dry_clay_aggregate:
+    bulk: 9 GPa
+    sigma_bulk: 3 GPa
+    shear: 4 GPa
+    sigma_shear: 2 GPa
+    density: 2.60 g/cc
+    clay: true
+    source: >-
+      dry clay aggregates measure about 6-12 GPa (Vanorio, Prasad & Nur 2003,
+      GJI 155) [from memory, via the domain brief]; shear modulus and density
+      invented for this demonstration
+
+# One grain modulus shared by the three samples of plug QV14-2231 (their alpha
+# errors are correlated through it). Invented XRD weight fractions.
+grain_moduli:
+  qv14-2231:
+    mineralogy:
+      basis: weight
+      fractions: {{quartz: 0.90, feldspar: 0.07, mixed_clay: 0.03}}
 
 samples:
   # Clean sandstone, static, first loading. Row {OUTLIER_INDEX + 1} of the CSV is an
@@ -212,6 +253,7 @@ samples:
     fit:
       loss: cauchy
       loss_scale: 2
+    grain_modulus: qv14-2231
 
   # The same plug unloading from 60 MPa: stiffer than loading at equal P.
   - id: QV14-2231V-unload
@@ -228,6 +270,14 @@ samples:
       columns: [P_c MPa, P_p MPa, K GPa, sigma_K GPa]
       rows:
 {inline_rows(rows_2231u)}    models: [exp-modulus, exp-compliance]
+    grain_modulus: qv14-2231
+    # Brine-saturated equivalent: M, K_u and Skempton B (brine modulus invented).
+    fluid_modulus: {{K_f: 2.25 GPa, sigma: 0.05 GPa, source: "brine, invented for the demonstration"}}
+    bands:
+      methods: [delta, monte-carlo, bootstrap]
+      monte_carlo_draws: 4000
+      bootstrap_replicates: 1000
+      bootstrap_kind: residual
 
   # The same plug, dry ultrasonic velocities on loading.
   - id: QV14-2231V-dyn
@@ -252,6 +302,8 @@ samples:
       - id: linear-exp
         parameters:
           B: {{upper: 0.1 GPa/MPa}}
+    # Dynamic K: alpha from it is indicative only (the outputs say so).
+    grain_modulus: qv14-2231
 
   # Shaly sandstone, horizontal plug; lab sheet in psi and ksi.
   - id: QV14-2318H
@@ -269,7 +321,20 @@ samples:
       columns: [P_c psi, P_p psi, K ksi]
       file: data/QV14-2318H.csv
     models: [exp-modulus, exp-compliance, linear]
-
+    # 30 % clay by weight: the mineralogy K_s is visibly less certain.
+    grain_modulus:
+      mineralogy:
+        basis: weight
+        fractions: {{quartz: 0.62, feldspar: 0.08, gulf_clay: 0.30}}
+    bands:
+      methods: [delta, monte-carlo, bootstrap]
+      monte_carlo_draws: 4000
+      bootstrap_replicates: 1000
+      bootstrap_kind: wild
+    vti_stiffness:
+      columns: [P MPa, C11 GPa, C12 GPa, C13 GPa, C33 GPa]
+      rows:
+{vti_rows_2318}
   # Limestone; pressures logged in bar; no stated uncertainties (unweighted).
   - id: QV14-2409V
     lithology: limestone
@@ -288,6 +353,11 @@ samples:
       - id: power-ref
         parameters:
           P_ref: {{fixed: 15 MPa}}
+    grain_modulus:
+      measured:
+        K_s: 71.5 GPa
+        sigma: 1.8 GPa
+        source: unjacketed test on a twin plug (invented for the demonstration)
 
   # Shale: slow drainage, long holds; relative sigma column.
   - id: QV14-2544V
@@ -309,6 +379,11 @@ samples:
           P_close: {{upper: 200 MPa}}
       - linear
       - power-offset
+    # Clay-rich: the clay modulus is poorly known, so K_s is wide.
+    grain_modulus:
+      mineralogy:
+        basis: weight
+        fractions: {{quartz: 0.30, calcite: 0.12, dry_clay_aggregate: 0.55, pyrite: 0.03}}
 
   # Shaly sandstone, horizontal, dry ultrasonic; velocities in ft/s,
   # effective-pressure coefficient 0.85 for the velocities.
@@ -330,6 +405,7 @@ samples:
       columns: [P_c MPa, P_p MPa, Vp ft/s, Vs ft/s, rho kg/m3]
       file: data/QV14-2320H-ultrasonic.csv
     models: [exp-modulus, exp-compliance]
+    grain_modulus: none   # no mineralogy for this plug yet: no alpha
 
   # Shale, horizontal, dry ultrasonic; confining pressure with a constant
   # 2 MPa pore pressure.
@@ -351,6 +427,7 @@ samples:
       columns: [P_c MPa, Vp km/s, Vs km/s]
       rows:
 {inline_rows(rows_2551)}    models: [exp-modulus, linear, power-offset]
+    grain_modulus: none
 """
 with open(os.path.join(HERE, "invented-field-study.yaml"), "w", newline="\n") as f:
     f.write(study)

@@ -118,7 +118,8 @@ int CmdFit(const std::vector<std::string>& args, const std::string& command_line
   // --help must work without the required arguments.
   for (const std::string& a : args) {
     if (a == "--help" || a == "-h") {
-      std::cout << opts << "\nWrites summary.txt, parameters.csv, fits.csv, residuals.csv and results.json\n"
+      std::cout << opts << "\nWrites summary.txt, parameters.csv, fits.csv, residuals.csv, alpha.csv, grain_modulus.csv,\n"
+                              "alpha_vti.csv and results.json "
                               "(see docs/outputs.md). Nothing is written when loading fails.\n";
       return kExitOk;
     }

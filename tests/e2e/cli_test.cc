@@ -80,8 +80,9 @@ class Scratch {
   fs::path dir_;
 };
 
-const std::vector<std::string> kReportFiles = {"summary.txt", "parameters.csv", "fits.csv", "residuals.csv",
-                                               "results.json"};
+const std::vector<std::string> kReportFiles = {"summary.txt", "parameters.csv",    "fits.csv",
+                                               "residuals.csv", "alpha.csv",        "grain_modulus.csv",
+                                               "alpha_vti.csv", "results.json"};
 
 // ---------------------------------------------------------------- command line
 
@@ -187,7 +188,9 @@ TEST(SampleStudy, FitWritesEveryFileAndTheSummaryShowsEverySample) {
   }
   EXPECT_NE(r.out.find("decision support only"), std::string::npos);
   EXPECT_NE(r.out.find("invented"), std::string::npos);
-  EXPECT_EQ(Slurp(out / "summary.txt") + "\nwrote summary.txt, parameters.csv, fits.csv, residuals.csv, results.json to " +
+  EXPECT_EQ(Slurp(out / "summary.txt") +
+                "\nwrote summary.txt, parameters.csv, fits.csv, residuals.csv, alpha.csv, grain_modulus.csv, "
+                "alpha_vti.csv, results.json to " +
                 out.string() + "\n",
             r.out);
   // Only the report files: no staging folder left next to it.

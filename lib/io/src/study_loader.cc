@@ -3,6 +3,7 @@
 #include <yaml-cpp/yaml.h>
 
 #include <array>
+#include <cctype>
 #include <cmath>
 #include <filesystem>
 #include <fstream>
@@ -434,6 +435,331 @@ std::string ReadWholeFile(const std::string& path, bool& ok) {
   return buffer.str();
 }
 
+// ------------------------------------------------------- grain modulus, fluid, bands
+
+// "0.8", "80 %" or "0.8 fraction" -> fraction.
+double ParseFraction(const Field& f) {
+  const std::string& text = f.Scalar();
+  auto nt = SplitNumberUnit(text);
+  if (!nt) throw InputError(f.at, Quote(f.path) + " = " + Quote(text) + " is not a number");
+  double factor = 1;
+  if (!nt->unit.empty()) factor = UnitFactor(nt->unit, Quantity::kDimensionless, Quote(f.path), f.at);
+  const double v = nt->value * factor;
+  if (!std::isfinite(v)) throw InputError(f.at, Quote(f.path) + " = " + text + " is not finite");
+  return v;
+}
+
+// A non-negative uncertainty of `value`: a quantity or "%" of it.
+double ParseSigmaOf(const Field& f, Quantity q, double value) {
+  const std::string& text = f.Scalar();
+  auto nt = SplitNumberUnit(text);
+  if (!nt || nt->unit.empty())
+    throw InputError(f.at, Quote(f.path) + " = " + Quote(text) + " must be a number with a unit or '%' (e.g. '2 %')");
+  const double v = nt->unit == "%" ? nt->value / 100.0 * std::fabs(value)
+                                   : nt->value * UnitFactor(nt->unit, q, Quote(f.path), f.at);
+  if (!std::isfinite(v)) throw InputError(f.at, Quote(f.path) + " = " + text + " is not finite");
+  if (v < 0) throw InputError(f.at, Quote(f.path) + " = " + text + " must be >= 0");
+  return v;
+}
+
+std::string RequiredText(const Field& f, const MapReader& m, const std::string& what) {
+  if (!f) throw InputError(m.at(), "missing required key " + Quote(f.path) + " in " + what);
+  const std::string& s = f.Scalar();
+  if (s.empty()) throw InputError(f.at, Quote(f.path) + " must not be empty");
+  return s;
+}
+
+// `minerals:` at the top level: name -> {bulk, shear, density, sigma_bulk, sigma_shear, clay, source}.
+std::vector<poro::Mineral> ReadMinerals(const Field& f, const std::string& file) {
+  if (!f.node.IsMap()) throw InputError(f.at, "'minerals' must be a mapping of mineral names, found " + TypeName(f.node));
+  MapReader list(f.node, file, "the study minerals", "minerals");
+  std::vector<poro::Mineral> out;
+  for (auto it = f.node.begin(); it != f.node.end(); ++it) {
+    const std::string name = it->first.Scalar();
+    const Field entry = list.Get(name);
+    bool ok = !name.empty();
+    for (char c : name) ok = ok && (std::islower(static_cast<unsigned char>(c)) || std::isdigit(static_cast<unsigned char>(c)) || c == '_');
+    if (!ok)
+      throw InputError(entry.key_at, "mineral name " + Quote(name) + " must use lowercase letters, digits and '_'");
+    const std::string what = "mineral " + Quote(name);
+    MapReader m(entry.node, file, what, entry.path);
+    Field bulk = m.Get("bulk"), shear = m.Get("shear"), density = m.Get("density"), sb = m.Get("sigma_bulk"),
+          ss = m.Get("sigma_shear"), clay = m.Get("clay"), source = m.Get("source");
+    m.Finish();
+    for (const Field* r : {&bulk, &shear, &density, &sb, &ss})
+      if (!*r) throw InputError(m.at(), "missing required key " + Quote(r->path) + " in " + what);
+    poro::Mineral x;
+    x.name = name;
+    x.where = m.at();
+    x.bulk = ParseQuantity(bulk, Quantity::kModulus);
+    x.shear = ParseQuantity(shear, Quantity::kModulus);
+    x.density = ParseQuantity(density, Quantity::kDensity);
+    if (!(x.bulk > 0)) throw InputError(bulk.at, Quote(bulk.path) + " = " + bulk.Scalar() + " must be > 0");
+    if (!(x.shear >= 0)) throw InputError(shear.at, Quote(shear.path) + " = " + shear.Scalar() + " must be >= 0");
+    if (!(x.density > 0)) throw InputError(density.at, Quote(density.path) + " = " + density.Scalar() + " must be > 0");
+    x.sigma_bulk = ParseSigmaOf(sb, Quantity::kModulus, x.bulk);
+    x.sigma_shear = ParseSigmaOf(ss, Quantity::kModulus, x.shear);
+    if (clay) x.clay = clay.Boolean();
+    x.source = RequiredText(source, m, what + " (a literature reference with its reliability)");
+    out.push_back(std::move(x));
+  }
+  list.Finish();
+  return out;
+}
+
+// {measured: {...}} or {mineralogy: {...}}.
+GrainModulusChoice ReadGrainSpec(const Field& f, const std::string& file, const std::string& owner,
+                                 const poro::MineralTable& table) {
+  MapReader m(f.node, file, "grain modulus of " + owner, f.path);
+  Field measured = m.Get("measured"), mineralogy = m.Get("mineralogy");
+  m.Finish();
+  if (measured && mineralogy)
+    throw InputError(mineralogy.key_at, "give 'measured' or 'mineralogy' for the grain modulus of " + owner + ", not both");
+  if (!measured && !mineralogy)
+    throw InputError(m.at(), "grain modulus of " + owner + " needs 'measured' (value and sigma) or 'mineralogy' "
+                             "(mineral fractions)");
+  GrainModulusChoice g;
+  g.given = true;
+  g.where = m.at();
+  if (measured) {
+    const std::string what = "measured grain modulus of " + owner;
+    MapReader r(measured.node, file, what, measured.path);
+    Field ks = r.Get("K_s"), sigma = r.Get("sigma"), mu = r.Get("mu_s"), smu = r.Get("sigma_mu_s"),
+          source = r.Get("source");
+    r.Finish();
+    if (!ks) throw InputError(r.at(), "missing required key " + Quote(ks.path) + " in " + what);
+    if (!sigma)
+      throw InputError(r.at(), "missing required key " + Quote(sigma.path) + " in " + what +
+                                   " (its 1-sigma; K_s uncertainty often dominates alpha's)");
+    const double k = ParseQuantity(ks, Quantity::kModulus);
+    if (!(k > 0)) throw InputError(ks.at, Quote(ks.path) + " = " + ks.Scalar() + " must be > 0");
+    const double s = ParseSigmaOf(sigma, Quantity::kModulus, k);
+    std::optional<double> mu_s;
+    double s_mu = 0;
+    if (smu && !mu) throw InputError(smu.key_at, Quote(smu.path) + " is given without 'mu_s'");
+    if (mu) {
+      mu_s = ParseQuantity(mu, Quantity::kModulus);
+      if (!(*mu_s > 0)) throw InputError(mu.at, Quote(mu.path) + " = " + mu.Scalar() + " must be > 0");
+      if (smu) s_mu = ParseSigmaOf(smu, Quantity::kModulus, *mu_s);
+    }
+    g.sources.push_back(RequiredText(source, r, what + " (e.g. 'unjacketed test, lab sheet 12')"));
+    g.value = poro::MeasuredGrainModulus(k, s, mu_s, s_mu, r.at());
+    return g;
+  }
+  const std::string what = "mineralogy of " + owner;
+  MapReader r(mineralogy.node, file, what, mineralogy.path);
+  Field basis = r.Get("basis"), fractions = r.Get("fractions");
+  r.Finish();
+  if (!basis)
+    throw InputError(r.at(), "missing required key " + Quote(basis.path) + " in " + what +
+                                 " ('weight' as XRD reports, or 'volume')");
+  if (!fractions) throw InputError(r.at(), "missing required key " + Quote(fractions.path) + " in " + what);
+  poro::Composition c;
+  c.basis = ParseChoice<poro::FractionBasis>(
+      basis, {{"weight", poro::FractionBasis::kWeight}, {"volume", poro::FractionBasis::kVolume}});
+  c.where = fractions.at;
+  if (!fractions.node.IsMap())
+    throw InputError(fractions.at, Quote(fractions.path) + " must map mineral names to fractions (e.g. "
+                                                           "'{quartz: 0.8, calcite: 0.2}'), found " +
+                                       TypeName(fractions.node));
+  MapReader fm(fractions.node, file, what, fractions.path);  // rejects a mineral written twice
+  for (auto it = fractions.node.begin(); it != fractions.node.end(); ++it) {
+    const Field e = fm.Get(it->first.Scalar());
+    poro::MineralFraction mf;
+    mf.mineral = e.key;
+    mf.fraction = ParseFraction(e);
+    mf.where = e.key_at;
+    c.entries.push_back(mf);
+    g.fractions.push_back(mf.fraction);
+  }
+  fm.Finish();
+  if (auto issue = poro::ValidateComposition(table, c)) {
+    std::string msg = issue->message;
+    if (issue->entry >= 0 && msg.find("unknown") != std::string::npos)
+      msg += " (minerals: built-in table plus the study's 'minerals:' section)";
+    throw InputError(issue->Where(c), msg);
+  }
+  g.basis = c.basis;
+  g.value = poro::GrainModulusFromMineralogy(table, c);
+  for (const auto& e : c.entries) {
+    const poro::Mineral& x = table.Get(e.mineral);
+    g.sources.push_back(x.name + ": " + x.source);
+  }
+  return g;
+}
+
+FluidModulus ReadFluid(const Field& f, const std::string& file, const std::string& owner) {
+  const std::string what = "fluid modulus of " + owner;
+  MapReader m(f.node, file, what, f.path);
+  Field kf = m.Get("K_f"), sigma = m.Get("sigma"), source = m.Get("source");
+  m.Finish();
+  if (!kf) throw InputError(m.at(), "missing required key " + Quote(kf.path) + " in " + what);
+  if (!sigma) throw InputError(m.at(), "missing required key " + Quote(sigma.path) + " in " + what + " (0 GPa if exact)");
+  FluidModulus out;
+  out.where = m.at();
+  out.k_f = ParseQuantity(kf, Quantity::kModulus);
+  if (!(out.k_f > 0)) throw InputError(kf.at, Quote(kf.path) + " = " + kf.Scalar() + " must be > 0");
+  out.sigma = ParseSigmaOf(sigma, Quantity::kModulus, out.k_f);
+  if (source) out.source = source.Scalar();
+  return out;
+}
+
+// vti_stiffness: {columns: [P MPa, C11 GPa, C12 GPa, C13 GPa, C33 GPa], rows: [[...], ...]}
+std::vector<VtiPoint> ReadVti(const Field& f, const std::string& file, const std::string& owner) {
+  const std::string what = "VTI stiffnesses of " + owner;
+  MapReader m(f.node, file, what, f.path);
+  Field cols = m.Get("columns"), rows = m.Get("rows");
+  m.Finish();
+  if (!cols) throw InputError(m.at(), "missing required key " + Quote(cols.path) + " in " + what);
+  if (!rows) throw InputError(m.at(), "missing required key " + Quote(rows.path) + " in " + what);
+  cols.ExpectList();
+  rows.ExpectList();
+  static const std::vector<std::string> kNames = {"P", "C11", "C12", "C13", "C33"};
+  std::array<int, 5> index{-1, -1, -1, -1, -1};
+  std::vector<double> factor(cols.node.size(), 1.0);
+  for (size_t i = 0; i < cols.node.size(); ++i) {
+    const YAML::Node c = cols.node[i];
+    const SourceLocation at = Where(file, c.Mark());
+    if (!c.IsScalar()) throw InputError(at, Quote(cols.path) + " entries must be 'name unit' (e.g. 'C11 GPa')");
+    const std::string text = c.Scalar();
+    const size_t sp = text.find_first_of(" \t");
+    const std::string name = text.substr(0, sp);
+    int k = -1;
+    for (size_t j = 0; j < kNames.size(); ++j)
+      if (kNames[j] == name) k = static_cast<int>(j);
+    if (k < 0) {
+      std::string msg = "unknown column " + Quote(name) + " in " + Quote(cols.path) + " (columns: P, C11, C12, C13, C33)";
+      const std::string near = NearestWord(name, kNames);
+      if (!near.empty()) msg += "; did you mean " + Quote(near) + "?";
+      throw InputError(at, msg);
+    }
+    if (index[static_cast<size_t>(k)] >= 0) throw InputError(at, "column " + Quote(name) + " is declared twice");
+    if (sp == std::string::npos || text.find_first_not_of(" \t", sp) == std::string::npos)
+      throw InputError(at, "column " + Quote(name) + " needs a unit (e.g. '" + name + (k == 0 ? " MPa'" : " GPa'") + ")");
+    const std::string unit = text.substr(text.find_first_not_of(" \t", sp));
+    factor[i] = UnitFactor(unit, k == 0 ? Quantity::kPressure : Quantity::kModulus, "column " + Quote(name), at);
+    index[static_cast<size_t>(k)] = static_cast<int>(i);
+  }
+  for (size_t j = 0; j < kNames.size(); ++j)
+    if (index[j] < 0) throw InputError(cols.at, Quote(cols.path) + " needs a column " + Quote(kNames[j]));
+  if (rows.node.size() == 0) throw InputError(rows.at, Quote(rows.path) + " is empty");
+  std::vector<VtiPoint> out;
+  for (size_t i = 0; i < rows.node.size(); ++i) {
+    const YAML::Node row = rows.node[i];
+    const SourceLocation at = Where(file, row.Mark());
+    if (!row.IsSequence() || row.size() != cols.node.size())
+      throw InputError(at, Quote(rows.path) + " row " + std::to_string(i + 1) + " must be a list of " +
+                               std::to_string(cols.node.size()) + " numbers (one per column)");
+    std::array<double, 5> v{};
+    for (size_t j = 0; j < kNames.size(); ++j) {
+      const size_t col = static_cast<size_t>(index[j]);
+      const YAML::Node cell = row[col];
+      double x = 0;
+      if (!cell.IsScalar() || !csv::ParseNumber(cell.Scalar(), x) || !std::isfinite(x))
+        throw InputError(Where(file, cell.Mark()), "non-numeric value in " + Quote(rows.path) + " row " +
+                                                       std::to_string(i + 1) + " (" + kNames[j] + ")");
+      v[j] = x * factor[col];
+      if (j == 0 ? !(v[j] >= 0) : !(v[j] > 0))
+        throw InputError(Where(file, cell.Mark()), kNames[j] + " = " + cell.Scalar() +
+                                                       (j == 0 ? " is negative; pressures must be >= 0" : " must be > 0"));
+    }
+    out.push_back({v[0], v[1], v[2], v[3], v[4], at});
+  }
+  return out;
+}
+
+// `bands:` mapping over `into` (key by key; a given `grid` or `methods` replaces the default's).
+void ReadBandSettings(const Field& f, const std::string& file, const std::string& owner, BandSettings& into) {
+  MapReader m(f.node, file, "band options of " + owner, f.path);
+  Field conf = m.Get("confidence"), methods = m.Get("methods"), draws = m.Get("monte_carlo_draws"),
+        reps = m.Get("bootstrap_replicates"), kind = m.Get("bootstrap_kind"), seed = m.Get("seed"),
+        grid = m.Get("grid");
+  m.Finish();
+  bands::BandOptions& o = into.options;
+  std::vector<std::pair<std::string, SourceLocation>> keys;
+  auto to_int = [](const Field& x) {
+    const long long v = x.Integer();
+    if (v < -2147483647LL || v > 2147483647LL)
+      throw InputError(x.at, Quote(x.path) + " = " + x.Scalar() + " is too large");
+    return static_cast<int>(v);
+  };
+  if (conf) {
+    keys.emplace_back("confidence", conf.at);
+    o.confidence = conf.Number();
+    if (!(o.confidence > 0 && o.confidence < 1))
+      throw InputError(conf.at, Quote(conf.path) + " = " + conf.Scalar() + " is outside (0, 1) (e.g. 0.95)");
+  }
+  if (methods) {
+    methods.ExpectList();
+    if (methods.node.size() == 0) throw InputError(methods.at, Quote(methods.path) + " is empty: list at least one method");
+    o.delta = o.monte_carlo = o.bootstrap = false;
+    for (size_t i = 0; i < methods.node.size(); ++i) {
+      Field e;
+      e.node = methods.node[i];
+      e.path = methods.path + "[" + std::to_string(i + 1) + "]";
+      e.at = Where(file, e.node.Mark());
+      e.present = true;
+      const int which = ParseChoice<int>(e, {{"delta", 0}, {"monte-carlo", 1}, {"bootstrap", 2}});
+      bool& flag = which == 0 ? o.delta : which == 1 ? o.monte_carlo : o.bootstrap;
+      if (flag) throw InputError(e.at, "method " + Quote(e.Scalar()) + " is listed twice in " + Quote(methods.path));
+      flag = true;
+    }
+  }
+  if (draws) keys.emplace_back("monte_carlo_draws", draws.at), o.monte_carlo_draws = to_int(draws);
+  if (reps) keys.emplace_back("bootstrap_replicates", reps.at), o.bootstrap_replicates = to_int(reps);
+  if (kind)
+    o.bootstrap_kind = ParseChoice<bands::BootstrapKind>(
+        kind, {{"residual", bands::BootstrapKind::kResidual}, {"wild", bands::BootstrapKind::kWild}});
+  if (seed) {
+    const long long v = seed.Integer();
+    if (v < 0) throw InputError(seed.at, Quote(seed.path) + " = " + seed.Scalar() + " must be >= 0");
+    o.seed = static_cast<std::uint64_t>(v);
+  }
+  if (const std::string bad = o.Validate(); !bad.empty()) {
+    SourceLocation where = m.at();
+    for (const auto& [key, at] : keys)
+      if (bad.rfind("bands." + key + " ", 0) == 0) where = at;
+    throw InputError(where, bad);
+  }
+  if (grid) {
+    MapReader g(grid.node, file, "pressure grid of " + owner, grid.path);
+    Field pressures = g.Get("pressures"), from = g.Get("from"), to = g.Get("to"), count = g.Get("count"),
+          spacing = g.Get("spacing");
+    g.Finish();
+    bands::GridSpec spec;
+    if (pressures) {
+      for (const Field* x : {&from, &to, &count, &spacing})
+        if (*x) throw InputError(x->key_at, "give either " + Quote(pressures.path) + " or from/to/count/spacing, not both");
+      pressures.ExpectList();
+      spec.spacing = bands::GridSpacing::kExplicit;
+      for (size_t i = 0; i < pressures.node.size(); ++i) {
+        Field e;
+        e.node = pressures.node[i];
+        e.path = pressures.path + "[" + std::to_string(i + 1) + "]";
+        e.at = Where(file, e.node.Mark());
+        e.present = true;
+        const double p = ParseQuantity(e, Quantity::kPressure);
+        if (!(p >= 0)) throw InputError(e.at, Quote(e.path) + " = " + e.Scalar() + " is negative; pressures must be >= 0");
+        spec.pressures.push_back(p);
+      }
+    } else {
+      if (spacing)
+        spec.spacing = ParseChoice<bands::GridSpacing>(
+            spacing, {{"linear", bands::GridSpacing::kLinear}, {"log", bands::GridSpacing::kLog}});
+      if (from) spec.from = ParseQuantity(from, Quantity::kPressure);
+      if (to) spec.to = ParseQuantity(to, Quantity::kPressure);
+      if (count) spec.count = to_int(count);
+    }
+    if (const std::string bad = spec.Validate(); !bad.empty()) {
+      SourceLocation where = g.at();
+      for (const Field* x : {&pressures, &from, &to, &count, &spacing})
+        if (*x && bad.rfind("grid." + x->key, 0) == 0) where = x->at;
+      throw InputError(where, bad);
+    }
+    into.grid = spec;
+  }
+}
+
 // ---------------------------------------------------------------- the loader
 
 class Loader {
@@ -456,6 +782,13 @@ class Loader {
   FitOptionsRead defaults_fit_;
   bool has_default_fit_ = false;
   std::vector<ModelChoice> default_models_;
+  BandSettings default_bands_;
+  poro::MineralTable minerals_ = poro::MineralTable::Builtin();
+  std::map<std::string, GrainModulusChoice> groups_;
+  // Whether each sample wrote `grain_modulus` (a study that gives any K_s
+  // must state it, or `none`, for every sample).
+  std::vector<bool> wrote_grain_;
+  bool any_grain_ = false;
 };
 
 Study Loader::Parse(std::string_view text) {
@@ -471,7 +804,8 @@ Study Loader::Parse(std::string_view text) {
 
   MapReader top(root, file_, "the study");
   Field version = top.Get("version"), name = top.Get("name"), description = top.Get("description"),
-        defaults = top.Get("defaults"), samples = top.Get("samples");
+        defaults = top.Get("defaults"), samples = top.Get("samples"), minerals = top.Get("minerals"),
+        grain_moduli = top.Get("grain_moduli");
   top.Finish();
   if (version && version.Integer() != 1)
     throw InputError(version.at, "version = " + version.Scalar() + " is not supported (this loader reads version 1)");
@@ -479,10 +813,34 @@ Study Loader::Parse(std::string_view text) {
   study_.name = name.Scalar();
   if (description) study_.description = description.Scalar();
 
+  if (minerals) {
+    poro::MineralTable overrides;
+    for (poro::Mineral& x : ReadMinerals(minerals, file_)) overrides.Set(std::move(x));
+    for (const auto& [n, x] : overrides.minerals()) study_.mineral_overrides.push_back(x);
+    minerals_ = poro::MineralTable::Builtin().Merge(overrides);
+  }
+  if (grain_moduli) {
+    if (!grain_moduli.node.IsMap())
+      throw InputError(grain_moduli.at, "'grain_moduli' must map group names to grain moduli, found " +
+                                            TypeName(grain_moduli.node));
+    MapReader g(grain_moduli.node, file_, "the study grain moduli", "grain_moduli");
+    for (auto it = grain_moduli.node.begin(); it != grain_moduli.node.end(); ++it) {
+      const Field e = g.Get(it->first.Scalar());
+      if (e.key.empty() || e.key == "none")
+        throw InputError(e.key_at, "grain modulus group name " + Quote(e.key) + " is reserved or empty");
+      GrainModulusChoice c = ReadGrainSpec(e, file_, "group " + Quote(e.key), minerals_);
+      c.group = e.key;
+      groups_[e.key] = std::move(c);
+      any_grain_ = true;
+    }
+    g.Finish();
+  }
+
   if (defaults) {
     MapReader d(defaults.node, file_, "the study defaults", "defaults");
-    Field fit = d.Get("fit"), models = d.Get("models");
+    Field fit = d.Get("fit"), models = d.Get("models"), bands = d.Get("bands");
     d.Finish();
+    if (bands) ReadBandSettings(bands, file_, "the study defaults", default_bands_);
     if (fit) {
       ReadFitOptions(fit, file_, "the study defaults", defaults_fit_);
       has_default_fit_ = true;
@@ -495,6 +853,14 @@ Study Loader::Parse(std::string_view text) {
   if (samples.node.size() == 0) throw InputError(samples.at, "'samples' is empty: the study has no samples");
   const YAML::Node& list = samples.node;
   for (size_t i = 0; i < list.size(); ++i) ReadSample(list[i], i);
+  if (any_grain_) {
+    for (size_t i = 0; i < study_.samples.size(); ++i)
+      if (!wrote_grain_[i])
+        throw InputError(study_.samples[i].sample.where,
+                         "sample " + Quote(study_.samples[i].sample.id) +
+                             " states no grain_modulus; this study computes alpha, so give one (measured, "
+                             "mineralogy or a group name) or 'none' (K_s is never defaulted)");
+  }
   return std::move(study_);
 }
 
@@ -622,7 +988,8 @@ void Loader::ReadSample(const YAML::Node& node, size_t index) {
         density = m.Get("bulk_density"), orientation = m.Get("orientation"), measurement = m.Get("measurement"),
         branch = m.Get("branch"), cycle = m.Get("cycle"), coefficient = m.Get("effective_pressure_coefficient"),
         pore_pressure = m.Get("pore_pressure"), uncertainty = m.Get("uncertainty"), data = m.Get("data"),
-        models = m.Get("models"), fit = m.Get("fit");
+        models = m.Get("models"), fit = m.Get("fit"), grain = m.Get("grain_modulus"),
+        fluid = m.Get("fluid_modulus"), vti = m.Get("vti_stiffness"), band = m.Get("bands");
   m.Finish();
 
   StudySample ss;
@@ -861,6 +1228,42 @@ void Loader::ReadSample(const YAML::Node& node, size_t index) {
   } else {
     ss.options.scale_covariance = !s.sigma_absolute;
   }
+
+  // Grain modulus, fluid, VTI stiffnesses and band settings (alpha outputs).
+  wrote_grain_.push_back(static_cast<bool>(grain));
+  if (grain) {
+    if (grain.node.IsScalar()) {
+      const std::string& g = grain.Scalar();
+      if (g != "none") {
+        auto it = groups_.find(g);
+        if (it == groups_.end()) {
+          std::vector<std::string> names = {"none"};
+          for (const auto& [group_name, c] : groups_) names.push_back(group_name);
+          std::string msg = "grain_modulus = " + Quote(g) + " is not a group under 'grain_moduli' (nor 'none'); "
+                            "known: " + Join(names);
+          const std::string near = NearestWord(g, names);
+          if (!near.empty()) msg += "; did you mean " + Quote(near) + "?";
+          throw InputError(grain.at, msg);
+        }
+        ss.grain = it->second;
+      }
+    } else {
+      ss.grain = ReadGrainSpec(grain, file_, what, minerals_);
+      any_grain_ = true;
+    }
+    ss.grain.where = grain.at;
+  }
+  auto needs_grain = [&](const Field& f) {
+    if (f && !ss.grain.given)
+      throw InputError(f.key_at, Quote(f.key) + " has no effect: " + what + " has no grain modulus (alpha is not computed)");
+  };
+  needs_grain(fluid);
+  needs_grain(vti);
+  needs_grain(band);
+  if (fluid) ss.fluid = ReadFluid(fluid, file_, what);
+  if (vti) ss.vti = ReadVti(vti, file_, what);
+  ss.bands = default_bands_;
+  if (band) ReadBandSettings(band, file_, what, ss.bands);
   study_.samples.push_back(std::move(ss));
 }
 

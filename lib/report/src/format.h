@@ -4,6 +4,7 @@
 #include <string_view>
 #include <vector>
 
+#include "porofit/bands/bands.h"
 #include "porofit/fit/fit_result.h"
 #include "porofit/io/study.h"
 
@@ -30,6 +31,15 @@ std::string Join(const std::vector<std::string>& parts, std::string_view sep);
 /// Index in `sample.points` of residual row i (the fit reports residuals in
 /// data order; matched by pressure if it ever does not).
 std::vector<int> ResidualToPoint(const FitResult& r, const Sample& sample);
+
+/// Short names of the raised flags of one grid point, in a fixed order:
+/// extrapolated, model-undefined, alpha-below-porosity, alpha-above-one,
+/// alpha-below-hs-limit, k-dry-not-below-k-s.
+std::vector<std::string> PointFlagNames(const bands::PointFlags& f);
+/// The statement that K_s correlates alpha errors (printed once per output).
+std::string CorrelationCaveat();
+/// Ids of the other samples in sample i's grain-modulus group.
+std::vector<std::string> SharedWith(const Study& study, size_t i);
 
 /// 100 * se / |estimate|, NaN where undefined.
 double RelativeErrorPercent(double estimate, double se);

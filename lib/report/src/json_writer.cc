@@ -241,6 +241,126 @@ Json FitJson(const StudySample& ss, const ModelChoice& choice, const FitResult& 
   return j;
 }
 
+Json Vec(const std::vector<double>& v, double scale) {
+  Json a = Json::array();
+  for (double x : v) a.push_back(Number(x / scale));
+  return a;
+}
+
+Json BandJson(const bands::Band& b, double scale) {
+  return {{"estimate", Vec(b.estimate, scale)}, {"lower", Vec(b.lower, scale)}, {"upper", Vec(b.upper, scale)}};
+}
+
+Json GrainJson(const StudyRun& run, size_t i) {
+  const StudySample& ss = run.study.samples[i];
+  const GrainModulusChoice& g = ss.grain;
+  Json j;
+  if (!g.given) {
+    j["method"] = "none";
+    j["note"] = "no grain modulus: alpha not computed for this sample";
+    return j;
+  }
+  const poro::GrainModulus& v = g.value;
+  const double G = units::kGPa;
+  j["method"] = std::string(poro::ToString(v.method));
+  j["group"] = g.group.empty() ? Json(nullptr) : Json(g.group);
+  j["shared_with"] = detail::SharedWith(run.study, i);
+  if (g.where.known()) j["given_at"] = g.where.ToString();
+  j["unit"] = "GPa unless named";
+  j["K_s"] = Number(v.k_s / G);
+  j["sigma_K_s"] = Number(v.sigma_k_s / G);
+  j["mu_s"] = Number(v.mu_s / G);
+  j["sigma_mu_s"] = Number(v.sigma_mu_s / G);
+  if (v.method == poro::GrainModulusMethod::kMineralogy) {
+    j["K"] = {{"voigt", Number(v.k_voigt / G)},       {"reuss", Number(v.k_reuss / G)},
+              {"hill", Number(v.k_hill / G)},         {"hs_lower", Number(v.k_hs_lower / G)},
+              {"hs_upper", Number(v.k_hs_upper / G)}, {"sigma_spread", Number(v.sigma_k_s_spread / G)},
+              {"sigma_table", Number(v.sigma_k_s_table / G)}};
+    j["mu"] = {{"voigt", Number(v.mu_voigt / G)},       {"reuss", Number(v.mu_reuss / G)},
+               {"hill", Number(v.mu_hill / G)},         {"hs_lower", Number(v.mu_hs_lower / G)},
+               {"hs_upper", Number(v.mu_hs_upper / G)}, {"sigma_spread", Number(v.sigma_mu_s_spread / G)},
+               {"sigma_table", Number(v.sigma_mu_s_table / G)}};
+    j["basis"] = std::string(poro::ToString(g.basis));
+    Json comp = Json::array();
+    for (size_t k = 0; k < v.minerals.size(); ++k)
+      comp.push_back({{"mineral", v.minerals[k]},
+                      {"fraction_as_given", Number(k < g.fractions.size() ? g.fractions[k] : std::nan(""))},
+                      {"volume_fraction", Number(k < v.volume_fractions.size() ? v.volume_fractions[k] : std::nan(""))}});
+    j["composition"] = comp;
+    j["clay_volume_fraction"] = Number(v.clay_volume_fraction);
+    j["central_value"] = "Hill average; sigma^2 = sigma_spread^2 + sigma_table^2, sigma_spread = (V - R)/(2 sqrt 3)";
+  }
+  j["sources"] = g.sources;
+  return j;
+}
+
+Json AlphaJson(const bands::BandResult& b) {
+  Json j;
+  j["computed"] = b.computed;
+  j["message"] = b.message;
+  if (!b.computed) return j;
+  const double G = units::kGPa;
+  j["confidence"] = Number(b.confidence);
+  j["pressure_MPa"] = Vec(b.grid.pressure, units::kMPa);
+  j["data_range_MPa"] = {Number(b.grid.data_min / units::kMPa), Number(b.grid.data_max / units::kMPa)};
+  j["K_GPa"] = Vec(b.k, G);
+  j["alpha"] = Vec(b.alpha, 1);
+  Json flags = Json::array();
+  for (const auto& f : b.flags) flags.push_back(detail::PointFlagNames(f));
+  j["flags"] = flags;
+  const bands::DeltaResult& d = b.delta;
+  Json dj = {{"computed", d.computed}, {"message", d.message}};
+  if (d.computed) {
+    dj["quantile_rule"] = std::string(bands::ToString(d.quantile_rule));
+    dj["K_se_GPa"] = Vec(d.k_se, G);
+    dj["alpha_se"] = Vec(d.alpha_se, 1);
+    dj["ks_variance_share"] = Vec(d.grain_share, 1);
+    dj["alpha_dof"] = Vec(d.alpha_dof, 1);
+    dj["K_confidence_GPa"] = BandJson(d.k_confidence, G);
+    dj["alpha_confidence"] = BandJson(d.alpha_confidence, 1);
+    dj["K_prediction_GPa"] = BandJson(d.k_prediction, G);
+    dj["alpha_prediction"] = BandJson(d.alpha_prediction, 1);
+    dj["K_simultaneous_GPa"] = BandJson(d.k_simultaneous, G);
+    dj["alpha_simultaneous"] = BandJson(d.alpha_simultaneous, 1);
+  }
+  j["delta"] = dj;
+  const bands::MonteCarloResult& m = b.monte_carlo;
+  Json mj = {{"computed", m.computed}, {"message", m.message}};
+  if (m.computed || m.draws > 0) {
+    mj["distribution"] = std::string(bands::ToString(m.distribution));
+    mj["draws"] = m.draws;
+    mj["accepted"] = m.accepted;
+    mj["rejected"] = {{"grain", m.rejected_grain}, {"bounds", m.rejected_bounds}, {"curve", m.rejected_curve}};
+    mj["K_GPa"] = BandJson(m.k, G);
+    mj["alpha"] = BandJson(m.alpha, 1);
+  }
+  j["monte_carlo"] = mj;
+  const bands::BootstrapResult& t = b.bootstrap;
+  Json tj = {{"computed", t.computed}, {"message", t.message}};
+  if (t.computed || t.replicates > 0) {
+    tj["kind"] = std::string(bands::ToString(t.kind));
+    tj["replicates"] = t.replicates;
+    tj["succeeded"] = t.succeeded;
+    tj["failed"] = {{"status", t.failed_status}, {"curve", t.failed_curve}};
+    tj["K_GPa"] = BandJson(t.k, G);
+    tj["alpha"] = BandJson(t.alpha, 1);
+  }
+  j["bootstrap"] = tj;
+  Json derived = Json::object();
+  for (const bands::DerivedBand* x : {&b.biot_modulus, &b.undrained_modulus, &b.skempton}) {
+    const double scale = x->unit == "Pa" ? G : 1.0;
+    Json e = {{"computed", x->computed}, {"message", x->message}, {"unit", x->unit == "Pa" ? "GPa" : "1"}};
+    if (x->computed) {
+      e["se"] = Vec(x->se, scale);
+      e["confidence"] = BandJson(x->confidence, scale);
+    }
+    derived[x->name] = e;
+  }
+  j["derived"] = derived;
+  j["notes"] = b.notes;
+  return j;
+}
+
 }  // namespace
 
 Json ResultsJson(const StudyRun& run, const std::vector<InputDigest>& inputs, const ReportOptions& options) {
@@ -291,13 +411,60 @@ Json ResultsJson(const StudyRun& run, const std::vector<InputDigest>& inputs, co
     if (i < run.samples.size()) {
       const auto& results = run.samples[i].fits;
       for (size_t k = 0; k < results.size() && k < ss.models.size(); ++k) {
-        fits.push_back(FitJson(ss, ss.models[k], results[k], registry));
+        Json fj = FitJson(ss, ss.models[k], results[k], registry);
+        if (k < run.samples[i].bands.size()) fj["alpha"] = AlphaJson(run.samples[i].bands[k]);
+        fits.push_back(fj);
       }
     }
     js["fits"] = fits;
+    js["grain_modulus"] = GrainJson(run, i);
+    if (ss.fluid) {
+      js["fluid_modulus"] = {{"K_f_GPa", Number(ss.fluid->k_f / units::kGPa)},
+                             {"sigma_GPa", Number(ss.fluid->sigma / units::kGPa)},
+                             {"source", ss.fluid->source}};
+    } else {
+      js["fluid_modulus"] = nullptr;
+    }
+    if (ss.grain.given) {
+      const bands::BandOptions& bo = ss.bands.options;
+      Json methods = Json::array();
+      if (bo.delta) methods.push_back("delta");
+      if (bo.monte_carlo) methods.push_back("monte-carlo");
+      if (bo.bootstrap) methods.push_back("bootstrap");
+      js["band_settings"] = {{"confidence", Number(bo.confidence)},
+                             {"methods", methods},
+                             {"monte_carlo_draws", bo.monte_carlo_draws},
+                             {"bootstrap_replicates", bo.bootstrap_replicates},
+                             {"bootstrap_kind", std::string(bands::ToString(bo.bootstrap_kind))},
+                             {"seed", bo.seed}};
+    }
+    Json vti = Json::array();
+    if (i < run.samples.size()) {
+      for (const VtiAlphaPoint& a : run.samples[i].vti)
+        vti.push_back({{"pressure_MPa", Number(a.pressure / units::kMPa)},
+                       {"alpha_h", Number(a.alpha_h)},
+                       {"sigma_alpha_h", Number(a.sigma_h)},
+                       {"alpha_v", Number(a.alpha_v)},
+                       {"sigma_alpha_v", Number(a.sigma_v)},
+                       {"extrapolated", a.extrapolated}});
+    }
+    js["vti_alpha"] = vti;
     samples.push_back(js);
   }
   j["samples"] = samples;
+  Json overrides = Json::array();
+  for (const poro::Mineral& m : run.study.mineral_overrides)
+    overrides.push_back({{"name", m.name},
+                         {"bulk_GPa", Number(m.bulk / units::kGPa)},
+                         {"shear_GPa", Number(m.shear / units::kGPa)},
+                         {"density_kg_per_m3", Number(m.density)},
+                         {"sigma_bulk_GPa", Number(m.sigma_bulk / units::kGPa)},
+                         {"sigma_shear_GPa", Number(m.sigma_shear / units::kGPa)},
+                         {"clay", m.clay},
+                         {"source", m.source},
+                         {"location", m.where.ToString()}});
+  j["mineral_overrides"] = overrides;
+  j["alpha_notes"] = {detail::CorrelationCaveat()};
   return j;
 }
 

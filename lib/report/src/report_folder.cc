@@ -16,7 +16,8 @@ std::vector<InputDigest> DigestInputs(const Study& study) {
 }
 
 std::vector<std::string> ReportFileNames() {
-  return {"summary.txt", "parameters.csv", "fits.csv", "residuals.csv", "results.json"};
+  return {"summary.txt", "parameters.csv", "fits.csv",          "residuals.csv",
+          "alpha.csv",   "grain_modulus.csv", "alpha_vti.csv", "results.json"};
 }
 
 void WriteReportFolder(const StudyRun& run, const std::filesystem::path& folder,
@@ -36,6 +37,9 @@ void WriteReportFolder(const StudyRun& run, const std::filesystem::path& folder,
         emit("parameters.csv", [&](std::ostream& o) { WriteParametersCsv(run, o); });
         emit("fits.csv", [&](std::ostream& o) { WriteFitsCsv(run, o); });
         emit("residuals.csv", [&](std::ostream& o) { WriteResidualsCsv(run, o); });
+        emit("alpha.csv", [&](std::ostream& o) { WriteAlphaCsv(run, o); });
+        emit("grain_modulus.csv", [&](std::ostream& o) { WriteGrainModulusCsv(run, o); });
+        emit("alpha_vti.csv", [&](std::ostream& o) { WriteVtiAlphaCsv(run, o); });
         emit("results.json", [&](std::ostream& o) { WriteResultsJson(run, inputs, o, options); });
       },
       folder_options);

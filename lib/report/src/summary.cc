@@ -42,6 +42,73 @@ std::string ParameterText(const FitResult& r) {
   return detail::Join(parts, ", ");
 }
 
+// Grid points shown in the summary: nearest to 5, 20 and 40 MPa among those
+// inside the data range (the middle grid point when none is).
+std::vector<size_t> SummaryPoints(const bands::PressureGrid& g) {
+  std::vector<size_t> out;
+  for (double target : {5.0, 20.0, 40.0}) {
+    size_t best = g.size();
+    double gap = INFINITY;
+    for (size_t j = 0; j < g.size(); ++j) {
+      if (j < g.extrapolated.size() && g.extrapolated[j]) continue;
+      const double d = std::fabs(g.pressure[j] / units::kMPa - target);
+      if (d < gap) gap = d, best = j;
+    }
+    if (best < g.size() && std::find(out.begin(), out.end(), best) == out.end()) out.push_back(best);
+  }
+  if (out.empty() && g.size() > 0) out.push_back(g.size() / 2);
+  return out;
+}
+
+std::string Interval(double lo, double hi) { return "[" + Fmt("%.3f", lo) + ", " + Fmt("%.3f", hi) + "]"; }
+
+void AlphaBlock(const StudySample& ss, const SampleRun& sr, const FitResult* best, std::ostream& out) {
+  const GrainModulusChoice& g = ss.grain;
+  if (!g.given) {
+    out << "  alpha: not computed (grain_modulus: none).\n";
+    return;
+  }
+  const poro::GrainModulus& v = g.value;
+  out << "  K_s = " << Fmt("%.2f", v.k_s / units::kGPa) << " ± " << Fmt("%.2f", v.sigma_k_s / units::kGPa) << " GPa ("
+      << poro::ToString(v.method);
+  if (!g.group.empty()) out << ", shared group '" << g.group << "'";
+  out << ")";
+  if (ss.fluid) out << "; K_f = " << Fmt("%.2f", ss.fluid->k_f / units::kGPa) << " ± " << Fmt("%.2f", ss.fluid->sigma / units::kGPa) << " GPa";
+  out << "\n";
+  if (best == nullptr) {
+    out << "  alpha: no converged fit to evaluate.\n";
+    return;
+  }
+  size_t k = 0;
+  while (k < sr.fits.size() && &sr.fits[k] != best) ++k;
+  if (k >= sr.bands.size()) return;
+  const bands::BandResult& b = sr.bands[k];
+  if (!b.computed) {
+    out << "  alpha (" << best->model_id << "): " << b.message << "\n";
+    return;
+  }
+  out << "  alpha from " << best->model_id << " (" << Fmt("%.0f", 100 * b.confidence) << " % bands):\n";
+  for (size_t j : SummaryPoints(b.grid)) {
+    out << "    P " << PadLeft(Fmt("%.1f", b.grid.pressure[j] / units::kMPa), 5) << " MPa: alpha "
+        << Fmt("%.3f", b.alpha[j]);
+    if (b.delta.computed) {
+      out << "  delta " << Interval(b.delta.alpha_confidence.lower[j], b.delta.alpha_confidence.upper[j]);
+      if (j < b.delta.grain_share.size()) out << " (K_s share " << Fmt("%.0f", 100 * b.delta.grain_share[j]) << " %)";
+    }
+    if (b.monte_carlo.computed) out << "  MC " << Interval(b.monte_carlo.alpha.lower[j], b.monte_carlo.alpha.upper[j]);
+    if (b.bootstrap.computed) out << "  boot " << Interval(b.bootstrap.alpha.lower[j], b.bootstrap.alpha.upper[j]);
+    const std::vector<std::string> f = detail::PointFlagNames(b.flags[j]);
+    if (!f.empty()) out << "  [" << detail::Join(f, ",") << "]";
+    out << "\n";
+  }
+  // The K_s correlation caveat is stated once at the end of the summary (and
+  // the group on the K_s line); the other notes are specific to this fit.
+  for (const std::string& n : b.notes) {
+    if (n.rfind("alpha errors are fully correlated", 0) == 0 || n.rfind("K_s is shared by group", 0) == 0) continue;
+    out << "      note: " << n << "\n";
+  }
+}
+
 void SampleBlock(const StudySample& ss, const SampleRun& sr, std::ostream& out) {
   const Sample& s = ss.sample;
   double pmin = INFINITY, pmax = -INFINITY;
@@ -97,6 +164,7 @@ void SampleBlock(const StudySample& ss, const SampleRun& sr, std::ostream& out) 
   } else {
     out << "  No converged fit with a defined AICc.\n";
   }
+  AlphaBlock(ss, sr, best, out);
 }
 
 }  // namespace
@@ -124,6 +192,9 @@ void WriteSummary(const StudyRun& run, std::ostream& out) {
   out << "\nRMSE from raw residuals. AICc: lower is better, compare only fits of the same sample; a gap under 2 "
          "does not separate two models (Burnham & Anderson 2002). Check every flag and note before using a fit; "
          "flags are explained in docs/outputs.md.\n";
+  bool any_alpha = false;
+  for (const StudySample& ss : run.study.samples) any_alpha = any_alpha || ss.grain.given;
+  if (any_alpha) out << "alpha = 1 - K_dry/K_s. " << detail::CorrelationCaveat() << ".\n";
 }
 
 }  // namespace porofit

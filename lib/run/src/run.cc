@@ -3,10 +3,13 @@
 #include <algorithm>
 #include <atomic>
 #include <chrono>
+#include <cmath>
 #include <ctime>
 #include <exception>
 #include <thread>
 
+#include "porofit/core/error.h"
+#include "porofit/poro/poroelastic.h"
 #include "porofit/version.h"
 
 namespace porofit {
@@ -90,6 +93,83 @@ FitResult RunOne(const StudySample& sample, const ModelChoice& choice, const Mod
   }
 }
 
+namespace {
+
+// Adds (dX/dK_f sigma_K_f)^2 to a derived delta band, keeping its quantile.
+void AddFluidVariance(bands::DerivedBand& b, const std::vector<double>& dx_dkf, double sigma_kf) {
+  if (!b.computed) return;
+  for (size_t i = 0; i < b.se.size() && i < dx_dkf.size(); ++i) {
+    const double c = b.confidence.estimate[i];
+    const double half = b.confidence.upper[i] - c;
+    const double q = b.se[i] > 0 ? half / b.se[i] : 0.0;
+    const double add = dx_dkf[i] * sigma_kf;
+    const double se = std::sqrt(b.se[i] * b.se[i] + add * add);
+    b.se[i] = se;
+    b.confidence.lower[i] = c - q * se;
+    b.confidence.upper[i] = c + q * se;
+  }
+}
+
+bands::BandResult NotComputed(std::string message) {
+  bands::BandResult r;
+  r.computed = false;
+  r.message = std::move(message);
+  return r;
+}
+
+}  // namespace
+
+bands::BandResult RunBands(const StudySample& sample, const ModelChoice& choice, const FitResult& fit,
+                           const ModelRegistry& registry) {
+  if (!sample.grain.given) return NotComputed("no grain modulus");
+  if (fit.status != FitStatus::kConverged)
+    return NotComputed("fit status " + std::string(ToString(fit.status)) + ": no bands");
+  const ModelSpec* model = registry.Find(choice.model_id);
+  const FitRequest request = MakeFitRequest(sample, choice, model);
+  bands::BandRequest br;
+  br.fit_request = &request;
+  br.fit = &fit;
+  br.k_s = sample.grain.value.k_s;
+  br.sigma_k_s = sample.grain.value.sigma_k_s;
+  br.mu_s = sample.grain.value.mu_s;
+  br.porosity = sample.sample.porosity;
+  if (sample.fluid) br.fluid_modulus = sample.fluid->k_f;
+  br.options = sample.bands.options;
+  br.options.threads = 1;  // parallel over samples instead; results do not depend on it
+  bands::BandResult out;
+  try {
+    br.grid = bands::MakeGrid(sample.bands.grid, request.data.x);
+    out = bands::ComputeBands(br);
+  } catch (const InputError& e) {
+    return NotComputed(std::string("bands not computed: ") + e.what());
+  }
+  if (sample.fluid && sample.fluid->sigma > 0 && out.computed) {
+    const double phi = sample.sample.porosity, ks = br.k_s, kf = sample.fluid->k_f;
+    std::vector<double> dm(out.k.size()), dku(out.k.size()), db(out.k.size());
+    for (size_t i = 0; i < out.k.size(); ++i) {
+      // 1/M = (alpha - phi)/K_s + phi/K_f  =>  dM/dK_f = M^2 phi / K_f^2;
+      // K_u = K + alpha^2 M; B = alpha M / K_u  =>  dB/dK_f = alpha K dM/dK_f / K_u^2.
+      const double a = out.alpha[i];
+      const double m = poro::BiotModulus(a, phi, ks, kf);
+      const double ku = poro::UndrainedBulkModulus(out.k[i], a, m);
+      dm[i] = m * m * phi / (kf * kf);
+      dku[i] = a * a * dm[i];
+      db[i] = a * out.k[i] * dm[i] / (ku * ku);
+    }
+    AddFluidVariance(out.biot_modulus, dm, sample.fluid->sigma);
+    AddFluidVariance(out.undrained_modulus, dku, sample.fluid->sigma);
+    AddFluidVariance(out.skempton, db, sample.fluid->sigma);
+    out.notes.push_back("M, K_u and B bands include the fluid-modulus uncertainty (first order)");
+  }
+  if (sample.sample.kind == MeasurementKind::kDynamic)
+    out.notes.push_back("K is a dynamic (ultrasonic) modulus, not the drained static tangent modulus Biot theory "
+                        "needs; this alpha is indicative only");
+  if (!sample.grain.group.empty())
+    out.notes.push_back("K_s is shared by group '" + sample.grain.group +
+                        "': alpha errors are correlated across every sample of the group");
+  return out;
+}
+
 StudyRun RunStudy(const Study& study, const RunOptions& options) {
   const std::string bad = options.Validate();
   POROFIT_CHECK(bad.empty(), "RunOptions: " + bad);
@@ -112,7 +192,24 @@ StudyRun RunStudy(const Study& study, const RunOptions& options) {
     std::vector<FitResult> fits;
     fits.reserve(s.models.size());
     for (const ModelChoice& c : s.models) fits.push_back(RunOne(s, c, registry));
+    std::vector<bands::BandResult> band_results;
+    if (s.grain.given) {
+      for (size_t k = 0; k < fits.size(); ++k) band_results.push_back(RunBands(s, s.models[k], fits[k], registry));
+    }
+    std::vector<VtiAlphaPoint> vti;
+    if (s.grain.given) {
+      double pmin = INFINITY, pmax = -INFINITY;
+      for (const DataPoint& p : s.sample.points) pmin = std::min(pmin, p.pressure), pmax = std::max(pmax, p.pressure);
+      const double ks = s.grain.value.k_s, sks = s.grain.value.sigma_k_s;
+      for (const VtiPoint& v : s.vti) {
+        const poro::AnisotropicBiot a = poro::BiotCoefficientVti({v.c11, v.c12, v.c13, v.c33}, ks);
+        vti.push_back({v.pressure, a.horizontal, a.vertical, (1 - a.horizontal) * sks / ks,
+                       (1 - a.vertical) * sks / ks, v.pressure < pmin || v.pressure > pmax});
+      }
+    }
     run.samples[i].fits = std::move(fits);  // each worker writes only its own slot
+    run.samples[i].bands = std::move(band_results);
+    run.samples[i].vti = std::move(vti);
   };
 
   const size_t workers = std::min<size_t>(static_cast<size_t>(options.threads), n_samples);

@@ -2,13 +2,18 @@
 // A study as loaded from a study file: samples, the models to fit to each,
 // and fit options. SI units throughout.
 #include <map>
+#include <optional>
 #include <string>
 #include <vector>
 
+#include "porofit/bands/grid.h"
+#include "porofit/bands/options.h"
 #include "porofit/core/error.h"
 #include "porofit/core/sample.h"
 #include "porofit/fit/fit_options.h"
 #include "porofit/fit/fitter.h"
+#include "porofit/poro/minerals.h"
+#include "porofit/poro/mixing.h"
 
 namespace porofit {
 
@@ -19,11 +24,60 @@ struct ModelChoice {
   SourceLocation where;
 };
 
+/// The grain (mineral) bulk modulus K_s of a sample, as the study states it.
+/// SI. Written per sample, or once under `grain_moduli:` and named by several
+/// samples (then every sample of the group gets the same value and sigma, and
+/// their alpha errors are correlated through it).
+struct GrainModulusChoice {
+  /// false: the sample says `grain_modulus: none` (or, in a study without any
+  /// grain modulus, says nothing): no alpha output. Never a default K_s.
+  bool given = false;
+  std::string group;  ///< name under `grain_moduli:`, "" when written in the sample
+  poro::GrainModulus value;  ///< K_s, sigma, averages, bounds, composition
+  poro::FractionBasis basis = poro::FractionBasis::kWeight;  ///< mineralogy: basis as written
+  std::vector<double> fractions;  ///< mineralogy: fractions as written (same order as value.minerals)
+  /// Literature sources of every value used: each mineral's table source, or
+  /// the measurement's `source` text.
+  std::vector<std::string> sources;
+  SourceLocation where;
+};
+
+/// Pore-fluid bulk modulus K_f for the Biot modulus, K_u and Skempton B. SI.
+struct FluidModulus {
+  double k_f = 0;      ///< Pa, > 0
+  double sigma = 0;    ///< 1-sigma, Pa, >= 0
+  std::string source;  ///< optional free text (e.g. "brine, 25 C, from memory")
+  SourceLocation where;
+};
+
+/// Drained static VTI stiffnesses measured at one differential pressure. SI.
+struct VtiPoint {
+  double pressure = 0;  ///< Pa
+  double c11 = 0, c12 = 0, c13 = 0, c33 = 0;  ///< Pa
+  SourceLocation where;
+};
+
+/// Uncertainty-band settings of one sample (study defaults overlaid with the
+/// sample's own, key by key).
+struct BandSettings {
+  /// Study default: the delta method only (Monte Carlo and bootstrap on request).
+  BandSettings() {
+    options.monte_carlo = false;
+    options.bootstrap = false;
+  }
+  bands::BandOptions options;  ///< level, methods, draws, replicates, seed
+  bands::GridSpec grid;        ///< pressure grid (default: spanning the data)
+};
+
 /// A sample together with what to do with it.
 struct StudySample {
   Sample sample;
   std::vector<ModelChoice> models;
   FitOptions options;  ///< study defaults overlaid with the sample's own
+  GrainModulusChoice grain;            ///< K_s (given = false: no alpha)
+  std::optional<FluidModulus> fluid;   ///< K_f, if given
+  std::vector<VtiPoint> vti;           ///< VTI stiffnesses, in file order (may be empty)
+  BandSettings bands;
 };
 
 /// An input file read while loading, for provenance (hashes are computed by
@@ -39,6 +93,9 @@ struct Study {
   std::string path;               ///< the study file
   std::vector<InputFile> inputs;  ///< study file first, then data files in order of use
   std::vector<StudySample> samples;
+  /// Minerals the study's `minerals:` section adds to or overrides in
+  /// poro::MineralTable::Builtin(), in name order.
+  std::vector<poro::Mineral> mineral_overrides;
   /// Non-fatal findings of the loader, each "file:line:col: warning: message"
   /// (e.g. Vp/Vs <= sqrt(2), a Poisson ratio <= 0), in file order.
   std::vector<std::string> warnings;

@@ -29,7 +29,9 @@
 namespace porofit {
 
 /// Version of the JSON layout; bumped when a field changes meaning or goes away.
-inline constexpr int kResultsSchemaVersion = 1;
+/// 2: adds per-sample "grain_modulus", "fluid_modulus", "band_settings",
+/// "vti_alpha", per-fit "alpha", top-level "mineral_overrides" and "alpha_notes".
+inline constexpr int kResultsSchemaVersion = 2;
 
 /// An input file with its digest, for provenance.
 struct InputDigest {
@@ -63,6 +65,13 @@ void WriteFitsCsv(const StudyRun& run, std::ostream& out);
 /// residuals.csv: one row per (sample, model, data point) for fits that
 /// produced residuals.
 void WriteResidualsCsv(const StudyRun& run, std::ostream& out);
+
+/// alpha.csv: one row per (sample with K_s, model, method, grid pressure).
+void WriteAlphaCsv(const StudyRun& run, std::ostream& out);
+/// grain_modulus.csv: one row per sample (method none when it has no K_s).
+void WriteGrainModulusCsv(const StudyRun& run, std::ostream& out);
+/// alpha_vti.csv: one row per VTI stiffness row of a sample with K_s.
+void WriteVtiAlphaCsv(const StudyRun& run, std::ostream& out);
 
 /// results.json as a value (ordered keys). NaN and infinities become null
 /// when dumped.

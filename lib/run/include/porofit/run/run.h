@@ -13,6 +13,7 @@
 #include <string>
 #include <vector>
 
+#include "porofit/bands/bands.h"
 #include "porofit/fit/fit_result.h"
 #include "porofit/fit/fitter.h"
 #include "porofit/io/study.h"
@@ -47,9 +48,24 @@ struct RunMetadata {
   double wall_seconds = 0;   ///< elapsed time of all fits, s (not part of any comparison)
 };
 
-/// The fits of one sample, in the order of StudySample::models.
+/// alpha_h and alpha_v at one pressure of a sample's VTI stiffness table,
+/// with the 1-sigma owed to K_s (the stiffnesses are taken as exact).
+struct VtiAlphaPoint {
+  double pressure = 0;  ///< Pa
+  double alpha_h = 0, alpha_v = 0;
+  double sigma_h = 0, sigma_v = 0;  ///< from sigma_K_s only: (1 - alpha) sigma_K_s / K_s
+  bool extrapolated = false;        ///< outside the sample's K data pressure range
+};
+
+/// The fits of one sample, in the order of StudySample::models, and their
+/// alpha bands.
 struct SampleRun {
   std::vector<FitResult> fits;
+  /// Parallel to `fits` when the sample has a grain modulus, else empty. An
+  /// entry with computed = false says why (fit not converged, no covariance,
+  /// grid problem); the band layer's notes are in BandResult::notes.
+  std::vector<bands::BandResult> bands;
+  std::vector<VtiAlphaPoint> vti;  ///< one per StudySample::vti row
 };
 
 struct StudyRun {
@@ -70,6 +86,13 @@ FitRequest MakeFitRequest(const StudySample& sample, const ModelChoice& choice, 
 
 /// Fits one model choice to one sample; never throws for a failing fit.
 FitResult RunOne(const StudySample& sample, const ModelChoice& choice, const ModelRegistry& registry);
+
+/// Computes the alpha bands of one fit (the sample must have a grain modulus).
+/// Never throws for bad data: problems become computed = false with a message.
+/// With a fluid modulus, the K_f variance is added to the delta-method bands
+/// of M, K_u and B (first order, same quantile; see docs/outputs.md).
+bands::BandResult RunBands(const StudySample& sample, const ModelChoice& choice, const FitResult& fit,
+                           const ModelRegistry& registry);
 
 /// Runs the whole study. Requires options.Validate().empty() (checked: a bad
 /// option is a programmer error and aborts).
