@@ -576,7 +576,7 @@ GrainModulusChoice ReadGrainSpec(const Field& f, const std::string& file, const 
   if (auto issue = poro::ValidateComposition(table, c)) {
     std::string msg = issue->message;
     if (issue->entry >= 0 && msg.find("unknown") != std::string::npos)
-      msg += " (minerals: built-in table plus the study's 'minerals:' section)";
+      msg += "; known minerals are the built-in table plus the study's 'minerals:' section";
     throw InputError(issue->Where(c), msg);
   }
   g.basis = c.basis;
