@@ -125,7 +125,7 @@ TEST(ResidualsCsv, HeaderCarriesUnitsAndValuesAreConverted) {
   ASSERT_EQ(lines.size(), 1u + 3u);  // the failed fit has no residuals
   EXPECT_EQ(lines[0],
             "sample,model,point,location,pressure_MPa,observed_K_GPa,fitted_K_GPa,sigma_K_GPa,residual_GPa,"
-            "standardized_residual,leverage");
+            "standardized_residual,leverage,robust_weight");
   const auto r2 = Split(lines[2]);
   EXPECT_EQ(r2[2], "2");
   EXPECT_EQ(r2[3], "demo/plug1.csv:3");

@@ -101,7 +101,7 @@ bool UnitKnown(const std::string& key, bool sibling_unit) {
   static const std::set<std::string> kDimensionless = {
       "schema_version", "threads", "point", "cycle", "size_bytes", "effective_pressure_coefficient",
       "poisson_ratio", "iterations", "starts_tried", "starts_converged", "si_factor", "durbin_watson",
-      "leverage", "standardized_residual"};
+      "leverage", "standardized_residual", "robust_weight"};
   static const std::vector<std::string> kSuffixes = {"_MPa", "_GPa", "_m_per_s", "_kg_per_m3", "_fraction",
                                                      "_percent", "_ratio"};
   if (sibling_unit || kDimensionless.count(key)) return true;

@@ -93,9 +93,10 @@ void WriteResidualsCsv(const StudyRun& run, std::ostream& out) {
       run.metadata.tool_version,
       {"pressure_MPa is the differential pressure P = P_c - n P_p; residual_GPa = observed - fitted; "
        "standardized_residual is internally studentised (residual / (s sigma sqrt(1 - leverage))); "
-       "sigma_K_GPa blank when the data carry no uncertainty; point = 1-based index in the sample's data"});
+       "sigma_K_GPa blank when the data carry no uncertainty; point = 1-based index in the sample's data; "
+       "robust_weight = weight the robust loss gave the point (1 without a robust loss)"});
   out << "sample,model,point,location,pressure_MPa,observed_K_GPa,fitted_K_GPa,sigma_K_GPa,residual_GPa,"
-         "standardized_residual,leverage\n";
+         "standardized_residual,leverage,robust_weight\n";
   for (size_t i = 0; i < run.study.samples.size() && i < run.samples.size(); ++i) {
     const Sample& s = run.study.samples[i].sample;
     const bool weighted = IsWeighted(s);
@@ -110,7 +111,7 @@ void WriteResidualsCsv(const StudyRun& run, std::ostream& out) {
                        j >= 0 ? CsvField(s.points[static_cast<size_t>(j)].where.ToString()) : std::string(),
                        Num(at(d.x) / units::kMPa), Num(at(d.observed) / units::kGPa), Num(at(d.fitted) / units::kGPa),
                        weighted ? Num(at(d.sigma) / units::kGPa) : std::string(), Num(at(d.raw) / units::kGPa),
-                       Num(at(d.standardized)), Num(at(d.leverage))});
+                       Num(at(d.standardized)), Num(at(d.leverage)), Num(at(d.robust_weight))});
       }
     }
   }

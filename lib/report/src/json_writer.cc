@@ -197,6 +197,11 @@ Json FitJson(const StudySample& ss, const ModelChoice& choice, const FitResult& 
                      {"ssr_unit", weighted ? "1" : "GPa^2"},
                      {"chi2_reduced", stat(r.chi2_reduced)},
                      {"chi2_reduced_unit", weighted ? "1" : "GPa^2"},
+                     {"chi2_reduced_robust", stat(r.chi2_reduced_robust)},
+                     {"residual_scale", stat(r.residual_scale)},
+                     {"residual_scale_unit", weighted ? "1 (sigma units)" : "GPa"},
+                     {"covariance_variance_factor", stat(r.variance_factor)},
+                     {"covariance_variance_factor_unit", weighted ? "1" : "GPa^2"},
                      {"rmse_GPa", stat(r.rmse / units::kGPa)},
                      {"r_squared", stat(r.r_squared)},
                      {"aic", stat(r.aic)},
@@ -225,7 +230,8 @@ Json FitJson(const StudySample& ss, const ModelChoice& choice, const FitResult& 
                         {"sigma_K_GPa", weighted ? Number(at(d.sigma) / units::kGPa) : Json(nullptr)},
                         {"residual_GPa", Number(at(d.raw) / units::kGPa)},
                         {"standardized_residual", Number(at(d.standardized))},
-                        {"leverage", Number(at(d.leverage))}});
+                        {"leverage", Number(at(d.leverage))},
+                        {"robust_weight", Number(at(d.robust_weight))}});
     }
   }
   res["points"] = points;
