@@ -1,4 +1,5 @@
 // Delta-method bands with K_s as an extra, independent, known-variance input.
+#include <cmath>
 #include <Eigen/Core>
 #include <boost/math/distributions/chi_squared.hpp>
 #include <boost/math/distributions/fisher_f.hpp>
@@ -79,7 +80,12 @@ DeltaResult ComputeDeltaBands(const BandRequest& r) {
   const Eigen::MatrixXd& cov = f.covariance;
   const auto p = static_cast<Eigen::Index>(v.free_index.size());
   const double ks = r.k_s, var_ks = r.sigma_k_s * r.sigma_k_s;
-  const double s2 = v.scaled ? f.chi2_reduced : 1.0;
+  // Noise scale for the prediction band: SSR/(n-p) for least squares; for a
+  // robust loss the fit's M-estimator scale, in which an outlier enters through
+  // its bounded psi rather than its full squared residual.
+  const bool robust = r.fit_request != nullptr && r.fit_request->options.loss != RobustLoss::kNone &&
+                      std::isfinite(f.residual_scale);
+  const double s2 = !v.scaled ? 1.0 : robust ? f.residual_scale * f.residual_scale : f.chi2_reduced;
 
   out.k_dof = v.k_dof;
   out.k_quantile = TwoSidedT(conf, out.quantile_rule == DeltaQuantile::kNormal ? kInf : v.k_dof);
