@@ -1,5 +1,7 @@
 #include "common.h"
 
+#include <algorithm>
+#include <cmath>
 #include <functional>
 #include <numbers>
 
@@ -197,6 +199,117 @@ void Percentiles3(std::vector<double>& v, double tail, double& lo, double& mid, 
   }
 }
 
+bool Percentiles3Guided(const std::vector<double>& v, double tail, const double guess[3], const double half_width[3],
+                        double& lo, double& mid, double& hi) {
+  const size_t n = v.size();
+  if (n == 0) return false;
+  const Position pos[3] = {PositionOf(n, tail), PositionOf(n, 0.5), PositionOf(n, 1.0 - tail)};
+  double lo_edge[3], hi_edge[3];
+  for (int t = 0; t < 3; ++t) {
+    if (!std::isfinite(guess[t]) || !std::isfinite(half_width[t])) return false;
+    lo_edge[t] = guess[t] - half_width[t];
+    hi_edge[t] = guess[t] + half_width[t];
+  }
+  // Pass 1: how many values lie below each bracket and how many at or below
+  // its top. Counting in doubles (exact below 2^53) lets the compiler
+  // vectorise the loop; a NaN would break the counts, so it sends the column
+  // to the full selection.
+  double cb0 = 0, cb1 = 0, cb2 = 0, cu0 = 0, cu1 = 0, cu2 = 0, finite = 0;
+  const double l0 = lo_edge[0], l1 = lo_edge[1], l2 = lo_edge[2];
+  const double h0 = hi_edge[0], h1 = hi_edge[1], h2 = hi_edge[2];
+  const double* data = v.data();
+  for (size_t i = 0; i < n; ++i) {
+    const double x = data[i];
+    finite += x == x ? 1.0 : 0.0;
+    cb0 += x < l0 ? 1.0 : 0.0;
+    cb1 += x < l1 ? 1.0 : 0.0;
+    cb2 += x < l2 ? 1.0 : 0.0;
+    cu0 += x <= h0 ? 1.0 : 0.0;
+    cu1 += x <= h1 ? 1.0 : 0.0;
+    cu2 += x <= h2 ? 1.0 : 0.0;
+  }
+  if (finite != static_cast<double>(n)) return false;
+  const size_t below[3] = {static_cast<size_t>(cb0), static_cast<size_t>(cb1), static_cast<size_t>(cb2)};
+  const size_t upto[3] = {static_cast<size_t>(cu0), static_cast<size_t>(cu1), static_cast<size_t>(cu2)};
+  for (int t = 0; t < 3; ++t) {
+    // Order statistic k, and k + 1 when interpolating, must both be inside.
+    const size_t last = pos[t].k + (pos[t].frac != 0 ? 1 : 0);
+    if (pos[t].k < below[t] || last >= upto[t]) return false;
+  }
+  // Pass 2: gather the values inside each bracket (branch-free compaction:
+  // every value is written, the fill index advances only for those inside).
+  thread_local std::vector<double> inside[3];
+  double* out[3];
+  for (int t = 0; t < 3; ++t) {
+    inside[t].resize(upto[t] - below[t] + 1);
+    out[t] = inside[t].data();
+  }
+  size_t f0 = 0, f1 = 0, f2 = 0;
+  for (size_t i = 0; i < n; ++i) {
+    const double x = data[i];
+    out[0][f0] = x;
+    out[1][f1] = x;
+    out[2][f2] = x;
+    f0 += static_cast<size_t>((x >= l0) & (x <= h0));
+    f1 += static_cast<size_t>((x >= l1) & (x <= h1));
+    f2 += static_cast<size_t>((x >= l2) & (x <= h2));
+  }
+  inside[0].resize(f0);
+  inside[1].resize(f1);
+  inside[2].resize(f2);
+  double value[3];
+  for (int t = 0; t < 3; ++t) {
+    std::vector<double>& w = inside[t];
+    const auto kth = w.begin() + static_cast<std::ptrdiff_t>(pos[t].k - below[t]);
+    std::nth_element(w.begin(), kth, w.end());
+    const double x = *kth;
+    value[t] = pos[t].frac == 0 ? x : x + pos[t].frac * (*std::min_element(kth + 1, w.end()) - x);
+  }
+  lo = value[0];
+  mid = value[1];
+  hi = value[2];
+  return true;
+}
+
+namespace {
+
+// Percentiles of one column, guided by the two previous columns of the same
+// block: adjacent grid points have nearly equal quantiles, so a bracket around
+// the linear extrapolation holds the wanted order statistics almost always,
+// and one counting pass replaces three introselects (measured 58 % of the
+// Monte Carlo time before). A miss falls back to the full selection.
+struct ColumnTracker {
+  int seen = 0;
+  double q1[3] = {0, 0, 0}, q2[3] = {0, 0, 0};
+
+  void Next(std::vector<double>& v, double tail, double& lo, double& mid, double& hi) {
+    bool done = false;
+    if (seen >= 1) {
+      double guess[3], half[3];
+      const double spread = q1[2] - q1[0];
+      // Half-widths as fractions of the previous central interval: about 100
+      // draws fall inside the tail brackets and 400 inside the median's at
+      // 4,000 draws of a near-normal column.
+      const double frac[3] = {0.06, 0.03, 0.06};
+      for (int t = 0; t < 3; ++t) {
+        guess[t] = seen >= 2 ? 2 * q1[t] - q2[t] : q1[t];
+        const double drift = seen >= 2 ? std::abs(q1[t] - q2[t]) : 0.0;
+        half[t] = frac[t] * spread + 0.5 * drift;
+      }
+      done = spread > 0 && Percentiles3Guided(v, tail, guess, half, lo, mid, hi);
+    }
+    if (!done) Percentiles3(v, tail, lo, mid, hi);
+    const double q[3] = {lo, mid, hi};
+    for (int t = 0; t < 3; ++t) {
+      q2[t] = q1[t];
+      q1[t] = q[t];
+    }
+    ++seen;
+  }
+};
+
+}  // namespace
+
 void PercentileBands(const double* k, const double* ks, const std::vector<char>& use, size_t grid,
                      double confidence, int threads, Band& k_out, Band& alpha_out) {
   const size_t rows = use.size();
@@ -206,7 +319,9 @@ void PercentileBands(const double* k, const double* ks, const std::vector<char>&
     b->upper.assign(grid, kNaN);
   }
   const double tail = 0.5 * (1.0 - confidence);
-  constexpr size_t kBlock = 16;
+  // Blocks of 50 grid points: the guided selection needs two columns of run-up
+  // per block, and 200 points split evenly over 2 or 4 threads.
+  constexpr size_t kBlock = 50;
   const int blocks = static_cast<int>((grid + kBlock - 1) / kBlock);
   ParallelFor(blocks, threads, [&](int b) {
     const size_t g0 = static_cast<size_t>(b) * kBlock, g1 = std::min(grid, g0 + kBlock), w = g1 - g0;
@@ -224,10 +339,13 @@ void PercentileBands(const double* k, const double* ks, const std::vector<char>&
         ca[c].push_back(1.0 - row[c] * inv);
       }
     }
+    // Trackers restart in every block, so a column's result never depends on
+    // how blocks are shared among threads (and is exact either way).
+    ColumnTracker tk, ta;
     for (size_t c = 0; c < w; ++c) {
       const size_t g = g0 + c;
-      Percentiles3(ck[c], tail, k_out.lower[g], k_out.estimate[g], k_out.upper[g]);
-      Percentiles3(ca[c], tail, alpha_out.lower[g], alpha_out.estimate[g], alpha_out.upper[g]);
+      tk.Next(ck[c], tail, k_out.lower[g], k_out.estimate[g], k_out.upper[g]);
+      ta.Next(ca[c], tail, alpha_out.lower[g], alpha_out.estimate[g], alpha_out.upper[g]);
     }
   });
 }

@@ -61,12 +61,20 @@ class TQuantileCurve {
 // Percentile bands of K and alpha = 1 - K/K_s from a draws x grid matrix of
 // K (row-major: row d holds K at every grid point for draw d) and the K_s of
 // each draw, using the rows with use[d] = true. Columns are gathered in blocks
-// of 16 grid points (cache-friendly) and processed on `threads` threads.
+// of 50 grid points and processed on `threads` threads.
 void PercentileBands(const double* k, const double* ks, const std::vector<char>& use, size_t grid,
                      double confidence, int threads, Band& k_out, Band& alpha_out);
 
 // Lower, median and upper percentiles of v (reordered), one pass of selections.
 void Percentiles3(std::vector<double>& v, double tail, double& lo, double& mid, double& hi);
+
+// The same three percentiles, found from brackets guess[t] +- half_width[t]
+// (t: lower, median, upper) in one counting pass. Returns false when a bracket
+// misses its order statistic (or v holds NaN): then nothing is written that
+// the caller may use. When it returns true the values equal Percentiles3()'s
+// exactly. v is not reordered.
+bool Percentiles3Guided(const std::vector<double>& v, double tail, const double guess[3], const double half_width[3],
+                        double& lo, double& mid, double& hi);
 
 // Runs f(i) for i in [0, count) on `threads` threads (static interleaved
 // partition). Each index writes only its own slot, so results do not depend
