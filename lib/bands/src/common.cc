@@ -325,19 +325,18 @@ void PercentileBands(const double* k, const double* ks, const std::vector<char>&
   const int blocks = static_cast<int>((grid + kBlock - 1) / kBlock);
   ParallelFor(blocks, threads, [&](int b) {
     const size_t g0 = static_cast<size_t>(b) * kBlock, g1 = std::min(grid, g0 + kBlock), w = g1 - g0;
-    std::vector<std::vector<double>> ck(w), ca(w);
-    for (size_t c = 0; c < w; ++c) {
-      ck[c].reserve(rows);
-      ca[c].reserve(rows);
-    }
+    const auto used = static_cast<size_t>(std::count_if(use.begin(), use.end(), [](char u) { return u != 0; }));
+    std::vector<std::vector<double>> ck(w, std::vector<double>(used)), ca(w, std::vector<double>(used));
+    size_t i = 0;
     for (size_t r = 0; r < rows; ++r) {
       if (!use[r]) continue;
       const double* row = k + r * grid + g0;
       const double inv = 1.0 / ks[r];
       for (size_t c = 0; c < w; ++c) {
-        ck[c].push_back(row[c]);
-        ca[c].push_back(1.0 - row[c] * inv);
+        ck[c][i] = row[c];
+        ca[c][i] = 1.0 - row[c] * inv;
       }
+      ++i;
     }
     // Trackers restart in every block, so a column's result never depends on
     // how blocks are shared among threads (and is exact either way).
