@@ -54,12 +54,15 @@ StudyRun RunText(const std::string& text) {
 
 const std::vector<double> kPressures = {2, 5, 8, 12, 18, 25, 35, 50, 70};
 
+// Invented stiffness laws, one exp-modulus law per stiffness (shale-like,
+// C11 > C33 and C12 > C13; values invented for these tests): P MPa -> GPa.
+std::vector<double> ExactRow(double p) {
+  return {p, Law(34, 24, 12, p), Law(11, 7, 9, p), Law(9, 5, 15, p), Law(24, 14, 10, p)};
+}
+
 TEST(VtiFit, FittedStiffnessesReproduceTheGivenTableAlphaWhenTheLawIsExact) {
-  // Invented stiffness laws, one exp-modulus law per stiffness (shale-like,
-  // C11 > C33 and C12 > C13; values invented for this test).
   std::vector<std::vector<double>> rows;
-  for (double p : kPressures)
-    rows.push_back({p, Law(34, 24, 12, p), Law(11, 7, 9, p), Law(9, 5, 15, p), Law(24, 14, 10, p)});
+  for (double p : kPressures) rows.push_back(ExactRow(p));
   const StudyRun given = RunText(StudyText(rows, ""));
   const StudyRun fitted = RunText(StudyText(rows, "exp-modulus"));
   ASSERT_EQ(given.samples[0].vti.size(), kPressures.size());
@@ -67,7 +70,19 @@ TEST(VtiFit, FittedStiffnessesReproduceTheGivenTableAlphaWhenTheLawIsExact) {
   const SampleRun& s = fitted.samples[0];
   ASSERT_EQ(s.vti_fits.size(), 4u);
   for (const VtiStiffnessFit& f : s.vti_fits) EXPECT_TRUE(f.fit.IsUsable()) << f.component << ": " << f.fit.message;
-  ASSERT_EQ(s.vti.size(), 2 * kPressures.size());
+  ASSERT_GT(s.vti.size(), 2 * kPressures.size());
+  // Band grid points: the fitted curves against the exact laws there (the
+  // default grid runs 10 % beyond the K data on each side).
+  size_t n_grid = 0;
+  for (size_t i = 2 * kPressures.size(); i < s.vti.size(); ++i) {
+    const VtiAlphaPoint& g = s.vti[i];
+    ASSERT_EQ(g.source, "fitted-grid");
+    ++n_grid;
+    const std::vector<double> c = ExactRow(g.pressure / 1e6);
+    EXPECT_NEAR(g.alpha_h, 1 - (c[1] + c[2] + c[3]) / (3 * 37), 1e-8) << "P = " << g.pressure;
+    EXPECT_NEAR(g.alpha_v, 1 - (2 * c[3] + c[4]) / (3 * 37), 1e-8) << "P = " << g.pressure;
+  }
+  EXPECT_EQ(n_grid, 200u);  // default band grid count (docs/study-file.md, bands)
   for (size_t i = 0; i < kPressures.size(); ++i) {
     const VtiAlphaPoint& t = s.vti[i];
     const VtiAlphaPoint& f = s.vti[kPressures.size() + i];
@@ -95,7 +110,7 @@ TEST(VtiFit, IsotropicStiffnessesGiveEqualAlphaOnTheFittedPath) {
     rows.push_back({p, kp + 4 * mu / 3, kp - 2 * mu / 3, kp - 2 * mu / 3, kp + 4 * mu / 3});
   }
   const SampleRun s = RunText(StudyText(rows, "exp-modulus")).samples[0];
-  ASSERT_EQ(s.vti.size(), 2 * kPressures.size());
+  ASSERT_GT(s.vti.size(), 2 * kPressures.size());
   for (size_t i = 0; i < kPressures.size(); ++i) {
     const VtiAlphaPoint& f = s.vti[kPressures.size() + i];
     ASSERT_EQ(f.source, "fitted");
@@ -113,7 +128,7 @@ TEST(VtiFit, NoisyStiffnessesAddFitUncertaintyToTheSigma) {
     rows.push_back({p, Law(34, 24, 12, p) + e, Law(11, 7, 9, p) - e, Law(9, 5, 15, p) + e, Law(24, 14, 10, p) - e});
   }
   const SampleRun s = RunText(StudyText(rows, "exp-modulus")).samples[0];
-  ASSERT_EQ(s.vti.size(), 2 * kPressures.size());
+  ASSERT_GT(s.vti.size(), 2 * kPressures.size());
   for (size_t i = 0; i < kPressures.size(); ++i) {
     const VtiAlphaPoint& t = s.vti[i];
     const VtiAlphaPoint& f = s.vti[kPressures.size() + i];
@@ -132,8 +147,7 @@ TEST(VtiFit, FailedStiffnessFitIsReportedAndDoesNotAbort) {
   // against the built-in catalogue, so set it after loading): every stiffness
   // fit fails with a message, the table rows remain, no fitted rows appear.
   std::vector<std::vector<double>> rows;
-  for (double p : kPressures)
-    rows.push_back({p, Law(34, 24, 12, p), Law(11, 7, 9, p), Law(9, 5, 15, p), Law(24, 14, 10, p)});
+  for (double p : kPressures) rows.push_back(ExactRow(p));
   Study study = ParseStudy(StudyText(rows, "exp-modulus"), "vti-fit.yaml", ModelRegistry::Builtin());
   study.samples[0].vti_fit_model = "no-such-model";
   RunOptions ro;
@@ -156,13 +170,13 @@ TEST(VtiFit, FailedStiffnessFitIsReportedAndDoesNotAbort) {
 
 TEST(VtiFit, OutputsNameTheSourceAndTheStiffnessFits) {
   std::vector<std::vector<double>> rows;
-  for (double p : kPressures)
-    rows.push_back({p, Law(34, 24, 12, p), Law(11, 7, 9, p), Law(9, 5, 15, p), Law(24, 14, 10, p)});
+  for (double p : kPressures) rows.push_back(ExactRow(p));
   const StudyRun run = RunText(StudyText(rows, "exp-modulus"));
   std::ostringstream csv;
   WriteVtiAlphaCsv(run, csv);
   EXPECT_NE(csv.str().find("flags,source\n"), std::string::npos);
   EXPECT_NE(csv.str().find(",fitted\n"), std::string::npos);
+  EXPECT_NE(csv.str().find(",fitted-grid\n"), std::string::npos);
   EXPECT_NE(csv.str().find(",table\n"), std::string::npos);
 }
 

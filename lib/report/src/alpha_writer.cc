@@ -153,7 +153,8 @@ void WriteVtiAlphaCsv(const StudyRun& run, std::ostream& out) {
       run.study, run.metadata.started_utc, run.metadata.tool_version,
       {"one row per row of a sample's vti_stiffness table (source = table; stiffnesses in GPa as given, drained, "
        "static; sigma_* are 1-sigma from sigma_K_s only), then, with vti_stiffness.fit, one row per table pressure "
-       "from the fitted stiffness curves (source = fitted; sigma_* add the fit variance of each stiffness, first "
+       "from the fitted stiffness curves (source = fitted) and one row per pressure of the sample's band grid "
+       "(source = fitted-grid); fitted sigma_* add the fit variance of each stiffness, first "
        "order, the four fits independent); alpha dimensionless",
        detail::CorrelationCaveat()});
   out << "sample,pressure_MPa,C11_GPa,C12_GPa,C13_GPa,C33_GPa,K_s_GPa,alpha_h,sigma_alpha_h,alpha_v,sigma_alpha_v,"

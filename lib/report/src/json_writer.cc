@@ -459,13 +459,13 @@ Json ResultsJson(const StudyRun& run, const std::vector<InputDigest>& inputs, co
     }
     js["vti_alpha"] = vti;
     if (!ss.vti_fit_model.empty()) {
-      Json fits = Json::array();
+      Json stiffness_fits = Json::array();
       if (i < run.samples.size()) {
         for (const VtiStiffnessFit& f : run.samples[i].vti_fits) {
           Json params = Json::array();
           for (const ParameterResult& p : f.fit.parameters)
             params.push_back({{"name", p.name}, {"estimate_si", Number(p.estimate)}, {"std_error_si", Number(p.std_error)}});
-          fits.push_back({{"component", f.component},
+          stiffness_fits.push_back({{"component", f.component},
                           {"status", std::string(ToString(f.fit.status))},
                           {"message", f.fit.message},
                           {"covariance_ok", f.fit.covariance_ok},
@@ -473,7 +473,7 @@ Json ResultsJson(const StudyRun& run, const std::vector<InputDigest>& inputs, co
                           {"parameters", params}});
         }
       }
-      js["vti_fit"] = {{"model", ss.vti_fit_model}, {"stiffness_fits", fits}};
+      js["vti_fit"] = {{"model", ss.vti_fit_model}, {"stiffness_fits", stiffness_fits}};
     }
     samples.push_back(js);
   }

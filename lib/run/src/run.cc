@@ -197,7 +197,6 @@ std::vector<VtiAlphaPoint> RunVti(const StudySample& s, const ModelRegistry& reg
   std::vector<double> pressure;
   for (const VtiPoint& v : s.vti) pressure.push_back(v.pressure);
   static const char* const kNames[] = {"C11", "C12", "C13", "C33"};
-  std::vector<bands::CurveGradient> curves(4);
   bool usable = true;
   for (size_t j = 0; j < 4; ++j) {
     VtiStiffnessFit f;
@@ -220,38 +219,53 @@ std::vector<VtiAlphaPoint> RunVti(const StudySample& s, const ModelRegistry& reg
                              std::string("internal error during fit: ") + e.what());
       }
     }
-    if (f.fit.IsUsable() && f.fit.covariance_ok) {
-      curves[j] = bands::EvaluateCurve(f.fit, *model, pressure);
-    } else {
+    if (!(f.fit.IsUsable() && f.fit.covariance_ok)) {
       usable = false;
       if (f.fit.IsUsable()) f.fit.message += "; no covariance: fitted VTI alpha not computed";
     }
     fits.push_back(std::move(f));
   }
   if (!usable) return out;
-  // Var C_j(P) = g^T Cov g of fit j (free parameters, SI).
-  auto variance = [&](size_t j, size_t i) {
-    const Eigen::MatrixXd& cov = fits[j].fit.covariance;
-    const std::vector<double>& g = curves[j].gradient[i];
-    double v = 0;
-    for (size_t a = 0; a < g.size(); ++a)
-      for (size_t b = 0; b < g.size(); ++b)
-        v += g[a] * cov(static_cast<Eigen::Index>(a), static_cast<Eigen::Index>(b)) * g[b];
-    return std::max(v, 0.0);
+  // The fitted stiffness curves at `at`, as points of `source`. Var C_j(P) =
+  // g^T Cov g of fit j (free parameters, SI).
+  auto fitted_points = [&](const std::vector<double>& at, const std::string& source) {
+    std::vector<bands::CurveGradient> c(4);
+    for (size_t j = 0; j < 4; ++j) c[j] = bands::EvaluateCurve(fits[j].fit, *model, at);
+    auto variance = [&](size_t j, size_t i) {
+      const Eigen::MatrixXd& cov = fits[j].fit.covariance;
+      const std::vector<double>& g = c[j].gradient[i];
+      double v = 0;
+      for (size_t a = 0; a < g.size(); ++a)
+        for (size_t b = 0; b < g.size(); ++b)
+          v += g[a] * cov(static_cast<Eigen::Index>(a), static_cast<Eigen::Index>(b)) * g[b];
+      return std::max(v, 0.0);
+    };
+    for (size_t i = 0; i < at.size(); ++i) {
+      VtiAlphaPoint v = point(at[i], c[0].value[i], c[1].value[i], c[2].value[i], c[3].value[i]);
+      v.source = source;
+      const double d = 3 * ks;
+      const double var_h = (variance(0, i) + variance(1, i) + variance(2, i)) / (d * d);
+      const double var_v = (4 * variance(2, i) + variance(3, i)) / (d * d);
+      v.sigma_h_fit = std::sqrt(var_h);
+      v.sigma_v_fit = std::sqrt(var_v);
+      v.sigma_h = std::sqrt(v.sigma_h * v.sigma_h + var_h);
+      v.sigma_v = std::sqrt(v.sigma_v * v.sigma_v + var_v);
+      out.push_back(v);
+    }
   };
-  for (size_t i = 0; i < pressure.size(); ++i) {
-    VtiAlphaPoint v = point(pressure[i], curves[0].value[i], curves[1].value[i], curves[2].value[i],
-                            curves[3].value[i]);
-    v.source = "fitted";
-    const double d = 3 * ks;
-    const double var_h = (variance(0, i) + variance(1, i) + variance(2, i)) / (d * d);
-    const double var_v = (4 * variance(2, i) + variance(3, i)) / (d * d);
-    v.sigma_h_fit = std::sqrt(var_h);
-    v.sigma_v_fit = std::sqrt(var_v);
-    v.sigma_h = std::sqrt(v.sigma_h * v.sigma_h + var_h);
-    v.sigma_v = std::sqrt(v.sigma_v * v.sigma_v + var_v);
-    out.push_back(v);
+  fitted_points(pressure, "fitted");
+  // The sample's band grid (built from its K data as for the alpha bands); a
+  // grid that cannot be built is already reported by the bands, so the grid
+  // points are then left out.
+  std::vector<double> data_p;
+  for (const DataPoint& p : s.sample.points) data_p.push_back(p.pressure);
+  std::vector<double> grid;
+  try {
+    if (!data_p.empty()) grid = bands::MakeGrid(s.bands.grid, data_p).pressure;
+  } catch (const InputError&) {
+    grid.clear();
   }
+  if (!grid.empty()) fitted_points(grid, "fitted-grid");
   return out;
 }
 

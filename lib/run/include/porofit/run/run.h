@@ -63,7 +63,7 @@ struct VtiAlphaPoint {
   double sigma_h = 0, sigma_v = 0;  ///< total 1-sigma (see above)
   double sigma_h_fit = 0, sigma_v_fit = 0;  ///< the part owed to the stiffness fits (0 for "table")
   bool extrapolated = false;        ///< outside the sample's K data pressure range
-  std::string source = "table";     ///< "table" or "fitted"
+  std::string source = "table";     ///< "table", "fitted" (at a table pressure) or "fitted-grid" (band grid)
 };
 
 /// One stiffness fit of `vti_stiffness.fit` (x = P, y = C_ij, unweighted).
@@ -82,7 +82,8 @@ struct SampleRun {
   std::vector<bands::BandResult> bands;
   /// One "table" point per StudySample::vti row, then (with
   /// vti_stiffness.fit and all four stiffness fits usable) one "fitted" point
-  /// per row, in the same order.
+  /// per row, in the same order, then one "fitted-grid" point per pressure of
+  /// the sample's band grid (StudySample::bands.grid over its K data).
   std::vector<VtiAlphaPoint> vti;
   /// The four stiffness fits (C11, C12, C13, C33) when vti_stiffness.fit is
   /// given, else empty.
