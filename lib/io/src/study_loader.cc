@@ -604,12 +604,30 @@ FluidModulus ReadFluid(const Field& f, const std::string& file, const std::strin
   return out;
 }
 
-// vti_stiffness: {columns: [P MPa, C11 GPa, C12 GPa, C13 GPa, C33 GPa], rows: [[...], ...]}
-std::vector<VtiPoint> ReadVti(const Field& f, const std::string& file, const std::string& owner) {
+// vti_stiffness: {columns: [P MPa, C11 GPa, C12 GPa, C13 GPa, C33 GPa], rows: [[...], ...],
+//                 fit: <model id> (optional)}
+std::vector<VtiPoint> ReadVti(const Field& f, const std::string& file, const std::string& owner,
+                              const ModelRegistry& registry, std::string& fit_model, SourceLocation& fit_where) {
   const std::string what = "VTI stiffnesses of " + owner;
   MapReader m(f.node, file, what, f.path);
-  Field cols = m.Get("columns"), rows = m.Get("rows");
+  Field cols = m.Get("columns"), rows = m.Get("rows"), fit = m.Get("fit");
   m.Finish();
+  const ModelSpec* fit_spec = nullptr;
+  if (fit) {
+    if (!fit.node.IsScalar() || fit.Scalar().empty())
+      throw InputError(fit.at, Quote(fit.path) + " must be one model id (e.g. 'exp-modulus'), found " +
+                                   TypeName(fit.node));
+    fit_spec = registry.Find(fit.Scalar());
+    if (fit_spec == nullptr) {
+      std::string msg = Quote(fit.path) + " = " + Quote(fit.Scalar()) + " is not a model in the catalogue; known: " +
+                        Join(registry.ids());
+      const std::string near = NearestWord(fit.Scalar(), registry.ids());
+      if (!near.empty()) msg += "; did you mean " + Quote(near) + "?";
+      throw InputError(fit.at, msg);
+    }
+    fit_model = fit.Scalar();
+    fit_where = fit.at;
+  }
   if (!cols) throw InputError(m.at(), "missing required key " + Quote(cols.path) + " in " + what);
   if (!rows) throw InputError(m.at(), "missing required key " + Quote(rows.path) + " in " + what);
   cols.ExpectList();
@@ -664,6 +682,15 @@ std::vector<VtiPoint> ReadVti(const Field& f, const std::string& file, const std
                                                        (j == 0 ? " is negative; pressures must be >= 0" : " must be > 0"));
     }
     out.push_back({v[0], v[1], v[2], v[3], v[4], at});
+  }
+  if (fit_spec != nullptr) {
+    // Each stiffness fit needs at least one degree of freedom left over.
+    const size_t need = fit_spec->parameters.size() + 1;
+    if (out.size() < need)
+      throw InputError(fit.at, Quote(fit.path) + " = " + Quote(fit.Scalar()) + " has " +
+                                   std::to_string(fit_spec->parameters.size()) + " parameters and needs >= " +
+                                   std::to_string(need) + " rows in " + Quote(rows.path) + ", found " +
+                                   std::to_string(out.size()));
   }
   return out;
 }
@@ -1261,7 +1288,7 @@ void Loader::ReadSample(const YAML::Node& node, size_t index) {
   needs_grain(vti);
   needs_grain(band);
   if (fluid) ss.fluid = ReadFluid(fluid, file_, what);
-  if (vti) ss.vti = ReadVti(vti, file_, what);
+  if (vti) ss.vti = ReadVti(vti, file_, what, registry_, ss.vti_fit_model, ss.vti_fit_where);
   ss.bands = default_bands_;
   if (band) ReadBandSettings(band, file_, what, ss.bands);
   study_.samples.push_back(std::move(ss));

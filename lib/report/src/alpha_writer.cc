@@ -151,21 +151,21 @@ void WriteVtiAlphaCsv(const StudyRun& run, std::ostream& out) {
       "anisotropic (VTI) Biot coefficients per given pressure: alpha_h = 1 - (C11 + C12 + C13)/(3 K_s), "
       "alpha_v = 1 - (2 C13 + C33)/(3 K_s)",
       run.study, run.metadata.started_utc, run.metadata.tool_version,
-      {"one row per row of a sample's vti_stiffness table; stiffnesses in GPa as given (drained, static); "
-       "sigma_* are 1-sigma from sigma_K_s only (stiffness errors not propagated); alpha dimensionless",
+      {"one row per row of a sample's vti_stiffness table (source = table; stiffnesses in GPa as given, drained, "
+       "static; sigma_* are 1-sigma from sigma_K_s only), then, with vti_stiffness.fit, one row per table pressure "
+       "from the fitted stiffness curves (source = fitted) and one row per pressure of the sample's band grid "
+       "(source = fitted-grid); fitted sigma_* add the fit variance of each stiffness, first "
+       "order, the four fits independent); alpha dimensionless",
        detail::CorrelationCaveat()});
   out << "sample,pressure_MPa,C11_GPa,C12_GPa,C13_GPa,C33_GPa,K_s_GPa,alpha_h,sigma_alpha_h,alpha_v,sigma_alpha_v,"
-         "flags\n";
+         "flags,source\n";
   for (size_t i = 0; i < run.study.samples.size() && i < run.samples.size(); ++i) {
     const StudySample& ss = run.study.samples[i];
-    const auto& vti = run.samples[i].vti;
-    for (size_t k = 0; k < vti.size() && k < ss.vti.size(); ++k) {
-      const VtiPoint& c = ss.vti[k];
-      const VtiAlphaPoint& a = vti[k];
-      out << CsvRow({CsvField(ss.sample.id), Num(a.pressure / units::kMPa), Num(c.c11 / units::kGPa),
-                     Num(c.c12 / units::kGPa), Num(c.c13 / units::kGPa), Num(c.c33 / units::kGPa),
+    for (const VtiAlphaPoint& a : run.samples[i].vti) {
+      out << CsvRow({CsvField(ss.sample.id), Num(a.pressure / units::kMPa), Num(a.c11 / units::kGPa),
+                     Num(a.c12 / units::kGPa), Num(a.c13 / units::kGPa), Num(a.c33 / units::kGPa),
                      Num(ss.grain.value.k_s / units::kGPa), Num(a.alpha_h), Num(a.sigma_h), Num(a.alpha_v),
-                     Num(a.sigma_v), a.extrapolated ? "extrapolated" : ""});
+                     Num(a.sigma_v), a.extrapolated ? "extrapolated" : "", CsvField(a.source)});
     }
   }
 }

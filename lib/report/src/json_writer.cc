@@ -452,9 +452,29 @@ Json ResultsJson(const StudyRun& run, const std::vector<InputDigest>& inputs, co
                        {"sigma_alpha_h", Number(a.sigma_h)},
                        {"alpha_v", Number(a.alpha_v)},
                        {"sigma_alpha_v", Number(a.sigma_v)},
-                       {"extrapolated", a.extrapolated}});
+                       {"sigma_alpha_h_fit", Number(a.sigma_h_fit)},
+                       {"sigma_alpha_v_fit", Number(a.sigma_v_fit)},
+                       {"extrapolated", a.extrapolated},
+                       {"source", a.source}});
     }
     js["vti_alpha"] = vti;
+    if (!ss.vti_fit_model.empty()) {
+      Json stiffness_fits = Json::array();
+      if (i < run.samples.size()) {
+        for (const VtiStiffnessFit& f : run.samples[i].vti_fits) {
+          Json params = Json::array();
+          for (const ParameterResult& p : f.fit.parameters)
+            params.push_back({{"name", p.name}, {"estimate_si", Number(p.estimate)}, {"std_error_si", Number(p.std_error)}});
+          stiffness_fits.push_back({{"component", f.component},
+                          {"status", std::string(ToString(f.fit.status))},
+                          {"message", f.fit.message},
+                          {"covariance_ok", f.fit.covariance_ok},
+                          {"rmse_GPa", Number(f.fit.rmse / units::kGPa)},
+                          {"parameters", params}});
+        }
+      }
+      js["vti_fit"] = {{"model", ss.vti_fit_model}, {"stiffness_fits", stiffness_fits}};
+    }
     samples.push_back(js);
   }
   j["samples"] = samples;

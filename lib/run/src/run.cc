@@ -170,6 +170,105 @@ bands::BandResult RunBands(const StudySample& sample, const ModelChoice& choice,
   return out;
 }
 
+std::vector<VtiAlphaPoint> RunVti(const StudySample& s, const ModelRegistry& registry,
+                                  std::vector<VtiStiffnessFit>& fits) {
+  fits.clear();
+  std::vector<VtiAlphaPoint> out;
+  if (!s.grain.given || s.vti.empty()) return out;
+  double pmin = INFINITY, pmax = -INFINITY;
+  for (const DataPoint& p : s.sample.points) pmin = std::min(pmin, p.pressure), pmax = std::max(pmax, p.pressure);
+  const double ks = s.grain.value.k_s, sks = s.grain.value.sigma_k_s;
+  auto point = [&](double p, double c11, double c12, double c13, double c33) {
+    const poro::AnisotropicBiot a = poro::BiotCoefficientVti({c11, c12, c13, c33}, ks);
+    VtiAlphaPoint v;
+    v.pressure = p;
+    v.c11 = c11, v.c12 = c12, v.c13 = c13, v.c33 = c33;
+    v.alpha_h = a.horizontal;
+    v.alpha_v = a.vertical;
+    v.sigma_h = (1 - a.horizontal) * sks / ks;
+    v.sigma_v = (1 - a.vertical) * sks / ks;
+    v.extrapolated = p < pmin || p > pmax;
+    return v;
+  };
+  for (const VtiPoint& v : s.vti) out.push_back(point(v.pressure, v.c11, v.c12, v.c13, v.c33));
+  if (s.vti_fit_model.empty()) return out;
+
+  const ModelSpec* model = registry.Find(s.vti_fit_model);
+  std::vector<double> pressure;
+  for (const VtiPoint& v : s.vti) pressure.push_back(v.pressure);
+  static const char* const kNames[] = {"C11", "C12", "C13", "C33"};
+  bool usable = true;
+  for (size_t j = 0; j < 4; ++j) {
+    VtiStiffnessFit f;
+    f.component = kNames[j];
+    if (model == nullptr) {
+      f.fit = FailedResult(s.vti_fit_model, FitStatus::kInvalidRequest,
+                           "model '" + s.vti_fit_model + "' is not in the catalogue");
+    } else {
+      FitRequest req;
+      req.model = model;
+      req.options = s.options;
+      req.data.x = pressure;
+      for (const VtiPoint& v : s.vti)
+        req.data.y.push_back(j == 0 ? v.c11 : j == 1 ? v.c12 : j == 2 ? v.c13 : v.c33);
+      try {  // as in RunOne: a library defect must not take the study down
+        f.fit = Fit(req);
+        if (f.fit.model_id.empty()) f.fit.model_id = s.vti_fit_model;
+      } catch (const std::exception& e) {
+        f.fit = FailedResult(s.vti_fit_model, FitStatus::kNumericalFailure,
+                             std::string("internal error during fit: ") + e.what());
+      }
+    }
+    if (!(f.fit.IsUsable() && f.fit.covariance_ok)) {
+      usable = false;
+      if (f.fit.IsUsable()) f.fit.message += "; no covariance: fitted VTI alpha not computed";
+    }
+    fits.push_back(std::move(f));
+  }
+  if (!usable) return out;
+  // The fitted stiffness curves at `at`, as points of `source`. Var C_j(P) =
+  // g^T Cov g of fit j (free parameters, SI).
+  auto fitted_points = [&](const std::vector<double>& at, const std::string& source) {
+    std::vector<bands::CurveGradient> c(4);
+    for (size_t j = 0; j < 4; ++j) c[j] = bands::EvaluateCurve(fits[j].fit, *model, at);
+    auto variance = [&](size_t j, size_t i) {
+      const Eigen::MatrixXd& cov = fits[j].fit.covariance;
+      const std::vector<double>& g = c[j].gradient[i];
+      double v = 0;
+      for (size_t a = 0; a < g.size(); ++a)
+        for (size_t b = 0; b < g.size(); ++b)
+          v += g[a] * cov(static_cast<Eigen::Index>(a), static_cast<Eigen::Index>(b)) * g[b];
+      return std::max(v, 0.0);
+    };
+    for (size_t i = 0; i < at.size(); ++i) {
+      VtiAlphaPoint v = point(at[i], c[0].value[i], c[1].value[i], c[2].value[i], c[3].value[i]);
+      v.source = source;
+      const double d = 3 * ks;
+      const double var_h = (variance(0, i) + variance(1, i) + variance(2, i)) / (d * d);
+      const double var_v = (4 * variance(2, i) + variance(3, i)) / (d * d);
+      v.sigma_h_fit = std::sqrt(var_h);
+      v.sigma_v_fit = std::sqrt(var_v);
+      v.sigma_h = std::sqrt(v.sigma_h * v.sigma_h + var_h);
+      v.sigma_v = std::sqrt(v.sigma_v * v.sigma_v + var_v);
+      out.push_back(v);
+    }
+  };
+  fitted_points(pressure, "fitted");
+  // The sample's band grid (built from its K data as for the alpha bands); a
+  // grid that cannot be built is already reported by the bands, so the grid
+  // points are then left out.
+  std::vector<double> data_p;
+  for (const DataPoint& p : s.sample.points) data_p.push_back(p.pressure);
+  std::vector<double> grid;
+  try {
+    if (!data_p.empty()) grid = bands::MakeGrid(s.bands.grid, data_p).pressure;
+  } catch (const InputError&) {
+    grid.clear();
+  }
+  if (!grid.empty()) fitted_points(grid, "fitted-grid");
+  return out;
+}
+
 StudyRun RunStudy(const Study& study, const RunOptions& options) {
   const std::string bad = options.Validate();
   POROFIT_CHECK(bad.empty(), "RunOptions: " + bad);
@@ -196,20 +295,12 @@ StudyRun RunStudy(const Study& study, const RunOptions& options) {
     if (s.grain.given) {
       for (size_t k = 0; k < fits.size(); ++k) band_results.push_back(RunBands(s, s.models[k], fits[k], registry));
     }
-    std::vector<VtiAlphaPoint> vti;
-    if (s.grain.given) {
-      double pmin = INFINITY, pmax = -INFINITY;
-      for (const DataPoint& p : s.sample.points) pmin = std::min(pmin, p.pressure), pmax = std::max(pmax, p.pressure);
-      const double ks = s.grain.value.k_s, sks = s.grain.value.sigma_k_s;
-      for (const VtiPoint& v : s.vti) {
-        const poro::AnisotropicBiot a = poro::BiotCoefficientVti({v.c11, v.c12, v.c13, v.c33}, ks);
-        vti.push_back({v.pressure, a.horizontal, a.vertical, (1 - a.horizontal) * sks / ks,
-                       (1 - a.vertical) * sks / ks, v.pressure < pmin || v.pressure > pmax});
-      }
-    }
+    std::vector<VtiStiffnessFit> vti_fits;
+    std::vector<VtiAlphaPoint> vti = RunVti(s, registry, vti_fits);
     run.samples[i].fits = std::move(fits);  // each worker writes only its own slot
     run.samples[i].bands = std::move(band_results);
     run.samples[i].vti = std::move(vti);
+    run.samples[i].vti_fits = std::move(vti_fits);
   };
 
   const size_t workers = std::min<size_t>(static_cast<size_t>(options.threads), n_samples);

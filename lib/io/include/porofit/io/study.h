@@ -77,6 +77,11 @@ struct StudySample {
   GrainModulusChoice grain;            ///< K_s (given = false: no alpha)
   std::optional<FluidModulus> fluid;   ///< K_f, if given
   std::vector<VtiPoint> vti;           ///< VTI stiffnesses, in file order (may be empty)
+  /// `vti_stiffness.fit`: a catalogue model id fitted to each of C11, C12,
+  /// C13, C33 against pressure (alpha_h, alpha_v are then also evaluated from
+  /// the fitted stiffnesses). Empty: the table is used as given only.
+  std::string vti_fit_model;
+  SourceLocation vti_fit_where;        ///< of the `fit` value (when given)
   BandSettings bands;
 };
 

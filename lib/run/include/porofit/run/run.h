@@ -48,13 +48,28 @@ struct RunMetadata {
   double wall_seconds = 0;   ///< elapsed time of all fits, s (not part of any comparison)
 };
 
-/// alpha_h and alpha_v at one pressure of a sample's VTI stiffness table,
-/// with the 1-sigma owed to K_s (the stiffnesses are taken as exact).
+/// alpha_h and alpha_v at one pressure of a sample's VTI stiffness, either
+/// from a table row as given (source "table"; the stiffnesses are taken as
+/// exact, so the 1-sigma is owed to K_s only) or from the fitted stiffness
+/// curves of `vti_stiffness.fit` at that row's pressure (source "fitted"; the
+/// 1-sigma adds, to first order, the variance of each fitted curve,
+/// g^T Cov g, the four fits taken as independent):
+///   Var alpha_h = (Var C11 + Var C12 + Var C13)/(3 K_s)^2 + ((1 - alpha_h) sigma_K_s/K_s)^2,
+///   Var alpha_v = (4 Var C13 + Var C33)/(3 K_s)^2 + ((1 - alpha_v) sigma_K_s/K_s)^2.
 struct VtiAlphaPoint {
   double pressure = 0;  ///< Pa
+  double c11 = 0, c12 = 0, c13 = 0, c33 = 0;  ///< stiffnesses used (given or fitted), Pa
   double alpha_h = 0, alpha_v = 0;
-  double sigma_h = 0, sigma_v = 0;  ///< from sigma_K_s only: (1 - alpha) sigma_K_s / K_s
+  double sigma_h = 0, sigma_v = 0;  ///< total 1-sigma (see above)
+  double sigma_h_fit = 0, sigma_v_fit = 0;  ///< the part owed to the stiffness fits (0 for "table")
   bool extrapolated = false;        ///< outside the sample's K data pressure range
+  std::string source = "table";     ///< "table", "fitted" (at a table pressure) or "fitted-grid" (band grid)
+};
+
+/// One stiffness fit of `vti_stiffness.fit` (x = P, y = C_ij, unweighted).
+struct VtiStiffnessFit {
+  std::string component;  ///< "C11", "C12", "C13" or "C33"
+  FitResult fit;          ///< status and message say why, if it failed
 };
 
 /// The fits of one sample, in the order of StudySample::models, and their
@@ -65,7 +80,14 @@ struct SampleRun {
   /// entry with computed = false says why (fit not converged, no covariance,
   /// grid problem); the band layer's notes are in BandResult::notes.
   std::vector<bands::BandResult> bands;
-  std::vector<VtiAlphaPoint> vti;  ///< one per StudySample::vti row
+  /// One "table" point per StudySample::vti row, then (with
+  /// vti_stiffness.fit and all four stiffness fits usable) one "fitted" point
+  /// per row, in the same order, then one "fitted-grid" point per pressure of
+  /// the sample's band grid (StudySample::bands.grid over its K data).
+  std::vector<VtiAlphaPoint> vti;
+  /// The four stiffness fits (C11, C12, C13, C33) when vti_stiffness.fit is
+  /// given, else empty.
+  std::vector<VtiStiffnessFit> vti_fits;
 };
 
 struct StudyRun {
@@ -93,6 +115,13 @@ FitResult RunOne(const StudySample& sample, const ModelChoice& choice, const Mod
 /// of M, K_u and B (first order, same quantile; see docs/outputs.md).
 bands::BandResult RunBands(const StudySample& sample, const ModelChoice& choice, const FitResult& fit,
                            const ModelRegistry& registry);
+
+/// The alpha_h, alpha_v points of a sample's VTI table (see SampleRun::vti),
+/// and in `fits` its stiffness fits. Never throws for a failing fit: a fit
+/// that is not usable leaves the "fitted" points out and says why in its
+/// FitResult. Needs a grain modulus (otherwise returns nothing).
+std::vector<VtiAlphaPoint> RunVti(const StudySample& sample, const ModelRegistry& registry,
+                                  std::vector<VtiStiffnessFit>& fits);
 
 /// Runs the whole study. Requires options.Validate().empty() (checked: a bad
 /// option is a programmer error and aborts).
