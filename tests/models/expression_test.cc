@@ -1,0 +1,200 @@
+// Formula models: agreement with the built-in catalogue, exact derivatives,
+// diagnostics for malformed formulas, precedence and associativity.
+#include "porofit/models/expression.h"
+
+#include <gtest/gtest.h>
+
+#include <cmath>
+#include <limits>
+#include <string>
+#include <thread>
+#include <vector>
+
+#include "model_cases.h"
+#include "porofit/models/registry.h"
+
+namespace porofit {
+namespace {
+
+std::vector<FormulaParameter> ExpModulusParams() {
+  return {{"K_inf", "GPa", 1e9, 0, 1e9, 20, ""}, {"K_0", "GPa", 1e9, 0, 1e9, 8, ""},
+          {"P_close", "MPa", 1e6, 0, 1e9, 10, ""}};
+}
+
+void ExpectSameAsBuiltin(const ModelSpec& mine, const std::string& builtin_id) {
+  const ModelSpec* ref = ModelRegistry::Builtin().Find(builtin_id);
+  ASSERT_NE(ref, nullptr);
+  ASSERT_EQ(mine.num_parameters(), ref->num_parameters());
+  const size_t n = ref->num_parameters();
+  int checked = 0;
+  for (const auto& th : testing::ParameterSets(builtin_id)) {
+    for (double p : testing::ProbePressures()) {
+      std::vector<double> g1(n), g2(n);
+      const double v1 = mine.value_and_gradient(th.data(), p, g1.data());
+      const double v2 = ref->value_and_gradient(th.data(), p, g2.data());
+      EXPECT_NEAR(v1, v2, 1e-12 * std::abs(v2)) << "P = " << p;
+      EXPECT_NEAR(mine.value(th.data(), p), v2, 1e-12 * std::abs(v2));
+      for (size_t j = 0; j < n; ++j)
+        EXPECT_NEAR(g1[j], g2[j], 1e-12 * std::max(1.0, std::abs(g2[j]))) << "j = " << j << " P = " << p;
+      const double s2 = ref->slope(th.data(), p);
+      EXPECT_NEAR(mine.slope(th.data(), p), s2, 1e-12 * std::max(1.0, std::abs(s2)));
+      ++checked;
+    }
+  }
+  EXPECT_GE(checked, 18);
+}
+
+TEST(FormulaModel, ReproducesBuiltinExpModulus) {
+  const ModelSpec m =
+      MakeFormulaModel("my-exp", "K_inf - (K_inf - K_0)*exp(-P/P_close)", ExpModulusParams());
+  ExpectSameAsBuiltin(m, "exp-modulus");
+}
+
+TEST(FormulaModel, ReproducesBuiltinPowerRefWithLeadingK) {
+  const ModelSpec m = MakeFormulaModel(
+      "my-power", "K = K_ref * (P/P_ref)^n",
+      {{"K_ref", "GPa", 1e9, 0, 1e9, 12, ""}, {"n", "1", 1, 0, 1, 0.2, ""}, {"P_ref", "MPa", 1e6, 0, 1e9, 20, ""}});
+  ExpectSameAsBuiltin(m, "power-ref");
+}
+
+TEST(FormulaModel, GradientAndSlopeMatchCentralDifferences) {
+  // Exercises every operator and function, including a parameter exponent.
+  const std::vector<FormulaParameter> params = {
+      {"a", "1", 1, 0, 10, 2.0, ""}, {"b", "1", 1, 0, 10, 0.7, ""}, {"c", "1", 1, 0, 10, 1.3, ""}};
+  const ModelSpec m = MakeFormulaModel(
+      "mix", "a*sqrt(P + c) - log(b + P)/c + pow(P, b) - exp(-b*P)^2 + (a/P)^c - -a", params);
+  const std::vector<std::vector<double>> thetas = {{2.0, 0.7, 1.3}, {5.0, 1.9, 0.4}};
+  for (const auto& th : thetas) {
+    for (double p : {0.5, 2.0, 9.0}) {
+      std::vector<double> g(3);
+      m.value_and_gradient(th.data(), p, g.data());
+      for (size_t j = 0; j < 3; ++j) {
+        const double h = 1e-6 * std::max(1.0, std::abs(th[j]));
+        auto tp = th, tm = th;
+        tp[j] += h;
+        tm[j] -= h;
+        const double fd = (m.value(tp.data(), p) - m.value(tm.data(), p)) / (2 * h);
+        EXPECT_NEAR(g[j], fd, 1e-6 * std::max(1.0, std::abs(fd))) << "j = " << j;
+      }
+      const double h = 1e-6 * p;
+      const double fd = (m.value(th.data(), p + h) - m.value(th.data(), p - h)) / (2 * h);
+      EXPECT_NEAR(m.slope(th.data(), p), fd, 1e-6 * std::max(1.0, std::abs(fd)));
+    }
+  }
+}
+
+struct BadCase {
+  const char* formula;
+  int column;
+  const char* fragment;
+};
+
+TEST(FormulaModel, MalformedFormulasNameColumnAndProblem) {
+  const BadCase cases[] = {
+      {"Kinf - (K_inf - K_0)*exp(-P/P_close)", 1, "unknown name 'Kinf' (did you mean 'K_inf'?)"},
+      {"K_inf - (K_inf - K_0*exp(-P/P_close)", 37, "unexpected end of formula"},
+      {"K_inf - (K_inf - K_0))*exp(-P/P_close)", 22, "unexpected ')'"},
+      {"K_inf -", 8, "unexpected end of formula"},
+      {"K_inf - K_0 * xp(-P/P_close)", 15, "unknown function 'xp' (did you mean 'exp'?)"},
+      {"K_inf - K_0 * exp -P/P_close", 19, "expected '(' after 'exp'"},
+      {"K_inf(P) + K_0 + P_close", 1, "'K_inf' is not a function"},
+      {"K_inf + K_0 * 1e- + P_close", 15, "malformed number"},
+      {"K_inf + K_0 + pow(P_close)", 26, "pow takes 2 arguments"},
+      {"K_inf + K_0 + exp(P_close, 2)", 26, "exp takes 1 argument"},
+      {"K_inf + K_0 # P_close", 13, "unexpected '#'"},
+      {"(K_inf + K_0) (P_close)", 15, "unexpected '('"},
+      {"   ", 4, "empty formula"},
+      {"K_inf + K_0 * (P_close P)", 24, "expected ')'"},
+  };
+  for (const auto& c : cases) {
+    try {
+      MakeFormulaModel("bad", c.formula, ExpModulusParams());
+      ADD_FAILURE() << "no error for " << c.formula;
+    } catch (const FormulaError& e) {
+      EXPECT_EQ(e.column(), c.column) << c.formula << ": " << e.message();
+      EXPECT_EQ(e.location().column, c.column);
+      EXPECT_NE(e.message().find("column " + std::to_string(c.column) + ": "), std::string::npos)
+          << e.message();
+      EXPECT_NE(e.message().find(c.fragment), std::string::npos) << c.formula << ": " << e.message();
+    }
+  }
+}
+
+TEST(FormulaModel, BadParameterDeclarationsAreRejected) {
+  auto p = ExpModulusParams();
+  p[1].start = std::numeric_limits<double>::quiet_NaN();
+  EXPECT_THROW(MakeFormulaModel("x", "K_inf + K_0 + P_close", p), FormulaError);
+  p = ExpModulusParams();
+  p[2].start = -1;  // below lower bound 0
+  EXPECT_THROW(MakeFormulaModel("x", "K_inf + K_0 + P_close", p), FormulaError);
+  p = ExpModulusParams();
+  p[2].name = "K_0";
+  EXPECT_THROW(MakeFormulaModel("x", "K_inf + K_0", p), FormulaError);
+  p = ExpModulusParams();
+  p[2].name = "P";
+  EXPECT_THROW(MakeFormulaModel("x", "K_inf + K_0 + P", p), FormulaError);
+  try {
+    MakeFormulaModel("x", "K_inf + K_0", ExpModulusParams());
+    ADD_FAILURE() << "unused parameter accepted";
+  } catch (const FormulaError& e) {
+    EXPECT_EQ(e.column(), 0);
+    EXPECT_NE(e.message().find("'P_close' does not appear"), std::string::npos) << e.message();
+  }
+}
+
+double Eval(const std::string& formula, double p = 3.0) {
+  const ModelSpec m = MakeFormulaModel("t", formula + " + 0*a", {{"a", "1", 1, -10, 10, 1, ""}});
+  const double th[1] = {1.0};
+  return m.value(th, p);
+}
+
+TEST(FormulaModel, PrecedenceAndAssociativityFollowMathConvention) {
+  EXPECT_EQ(Eval("2^3^2"), 512.0);        // right-associative
+  EXPECT_EQ(Eval("-P^2"), -9.0);          // -(P^2)
+  EXPECT_EQ(Eval("(-P)^2"), 9.0);
+  EXPECT_EQ(Eval("2^-1"), 0.5);
+  EXPECT_EQ(Eval("1 + 2*3"), 7.0);
+  EXPECT_EQ(Eval("8/4/2"), 1.0);          // left-associative
+  EXPECT_EQ(Eval("8 - 4 - 2"), 2.0);
+  EXPECT_EQ(Eval("2*3^2"), 18.0);
+  EXPECT_EQ(Eval("-2*-3"), 6.0);
+  EXPECT_EQ(Eval("- - P"), 3.0);
+  EXPECT_EQ(Eval("1e-3*1000"), 1.0);
+  EXPECT_EQ(Eval(".5 + 2.5E1"), 25.5);
+  EXPECT_EQ(Eval("pow(2, 3) + sqrt(16)"), 12.0);
+  EXPECT_EQ(Eval("log(exp(0))"), 0.0);
+  EXPECT_EQ(Eval("K = P/2"), 1.5);
+}
+
+TEST(FormulaModel, FillsSpecAndReturnsDeclaredStarts) {
+  const ModelSpec m =
+      MakeFormulaModel("my-exp", "K_inf - (K_inf - K_0)*exp(-P/P_close)", ExpModulusParams());
+  EXPECT_EQ(m.id, "my-exp");
+  EXPECT_EQ(m.formula, "K = K_inf - (K_inf - K_0)*exp(-P/P_close)");
+  ASSERT_EQ(m.num_parameters(), 3u);
+  EXPECT_EQ(m.parameters[2].name, "P_close");
+  EXPECT_EQ(m.parameters[2].unit, "MPa");
+  EXPECT_EQ(m.parameters[2].si_factor, 1e6);
+  const std::vector<double> x = {1, 2}, y = {3, 4};
+  EXPECT_EQ(m.start(x, y), (std::vector<double>{20, 8, 10}));
+}
+
+TEST(FormulaModel, EvaluatesConcurrentlyWithoutInterference) {
+  const ModelSpec m =
+      MakeFormulaModel("my-exp", "K_inf - (K_inf - K_0)*exp(-P/P_close)", ExpModulusParams());
+  const double th[3] = {20, 8, 10};
+  const double expected = m.value(th, 5.0);
+  std::vector<int> bad(4, 0);
+  std::vector<std::thread> threads;
+  for (int t = 0; t < 4; ++t)
+    threads.emplace_back([&, t] {
+      double g[3];
+      for (int i = 0; i < 20000; ++i)
+        if (m.value_and_gradient(th, 5.0, g) != expected) ++bad[static_cast<size_t>(t)];
+    });
+  for (auto& t : threads) t.join();
+  for (int b : bad) EXPECT_EQ(b, 0);
+}
+
+}  // namespace
+}  // namespace porofit
