@@ -133,6 +133,14 @@ TEST(FormulaModel, BadParameterDeclarationsAreRejected) {
   p = ExpModulusParams();
   p[2].name = "P";
   EXPECT_THROW(MakeFormulaModel("x", "K_inf + K_0 + P", p), FormulaError);
+  p = ExpModulusParams();
+  p[0].unit = "";
+  EXPECT_THROW(MakeFormulaModel("x", "K_inf + K_0 + P_close", p), FormulaError);
+  p = ExpModulusParams();
+  p[0].si_factor = 0;
+  EXPECT_THROW(MakeFormulaModel("x", "K_inf + K_0 + P_close", p), FormulaError);
+  EXPECT_THROW(MakeFormulaModel("", "K_inf + K_0 + P_close", ExpModulusParams()), FormulaError);
+  EXPECT_THROW(MakeFormulaModel("x", "2*P", {}), FormulaError);
   try {
     MakeFormulaModel("x", "K_inf + K_0", ExpModulusParams());
     ADD_FAILURE() << "unused parameter accepted";
@@ -177,6 +185,9 @@ TEST(FormulaModel, FillsSpecAndReturnsDeclaredStarts) {
   EXPECT_EQ(m.parameters[2].si_factor, 1e6);
   const std::vector<double> x = {1, 2}, y = {3, 4};
   EXPECT_EQ(m.start(x, y), (std::vector<double>{20, 8, 10}));
+  ModelRegistry registry;  // passes the registry's completeness checks (aborts otherwise)
+  registry.Add(m);
+  EXPECT_NE(registry.Find("my-exp"), nullptr);
 }
 
 TEST(FormulaModel, EvaluatesConcurrentlyWithoutInterference) {

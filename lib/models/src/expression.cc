@@ -275,6 +275,9 @@ double RunValue(const Tape& tape, const double* theta, double p) {
 
 ModelSpec MakeFormulaModel(std::string id, std::string_view formula,
                            std::vector<FormulaParameter> params) {
+  // The registry's completeness rules (registry.cc) must hold for the result.
+  if (id.empty()) throw FormulaError(0, "formula model id is empty");
+  if (params.empty()) throw FormulaError(0, "formula model '" + id + "' declares no parameters");
   for (size_t j = 0; j < params.size(); ++j) {
     const auto& q = params[j];
     if (q.name.empty()) throw FormulaError(0, "parameter " + std::to_string(j + 1) + " has no name");
@@ -283,6 +286,11 @@ ModelSpec MakeFormulaModel(std::string id, std::string_view formula,
     if (q.name == "P" || q.name == "K" || q.name == "exp" || q.name == "log" || q.name == "sqrt" ||
         q.name == "pow")
       throw FormulaError(0, "parameter name '" + q.name + "' is reserved");
+    if (q.unit.empty())
+      throw FormulaError(0, "parameter '" + q.name + "' needs a unit (\"1\" if dimensionless)");
+    if (!(std::isfinite(q.si_factor) && q.si_factor > 0))
+      throw FormulaError(0, "parameter '" + q.name + "' si_factor = " + FormatNumber(q.si_factor) +
+                                " must be positive");
     if (!std::isfinite(q.start))
       throw FormulaError(0, "parameter '" + q.name + "' needs a finite start value");
     if (!(q.start > q.lower && q.start < q.upper))
@@ -314,7 +322,7 @@ ModelSpec MakeFormulaModel(std::string id, std::string_view formula,
     ps.si_factor = q.si_factor;
     ps.lower = q.lower;
     ps.upper = q.upper;
-    ps.meaning = q.meaning;
+    ps.meaning = q.meaning.empty() ? "parameter of the user formula" : q.meaning;
     s.parameters.push_back(ps);
     starts.push_back(q.start);
   }

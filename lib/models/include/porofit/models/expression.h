@@ -22,7 +22,8 @@
 // Failure modes: a malformed formula throws FormulaError whose message()
 // starts with "column N: " (N one-based, counted in the formula text), e.g.
 // "column 12: unknown name 'Kinf' (did you mean 'K_inf'?)". Bad parameter
-// declarations (duplicate or reserved names, missing or out-of-bounds start,
+// declarations (empty id, no parameters, duplicate or reserved names, empty
+// unit, si_factor <= 0, missing or out-of-bounds start,
 // a parameter the formula never uses) throw FormulaError with column 0.
 // Evaluation outside the domain (log of a negative number) returns NaN, which
 // the solver treats as an infeasible step.
@@ -46,7 +47,7 @@ struct FormulaParameter {
   double lower = -std::numeric_limits<double>::infinity();  ///< bound, working units
   double upper = std::numeric_limits<double>::infinity();   ///< bound, working units
   double start = std::numeric_limits<double>::quiet_NaN();  ///< required, strictly inside bounds
-  std::string meaning;   ///< optional one-line description
+  std::string meaning;   ///< optional one-line description (default: generic text)
 };
 
 /// A malformed formula or parameter list. location().column and column() are
