@@ -34,6 +34,14 @@ std::string Join(const std::vector<std::string>& words) {
 
 std::string Quote(const std::string& s) { return "'" + s + "'"; }
 
+// An integer option that must fit an int; larger values are an input error.
+int ToInt(const Field& f) {
+  const long long v = f.Integer();
+  if (v < -2147483647LL || v > 2147483647LL)
+    throw InputError(f.at, Quote(f.path) + " = " + f.Scalar() + " is too large");
+  return static_cast<int>(v);
+}
+
 std::string Fixed(double v, int digits) {
   std::ostringstream os;
   os.setf(std::ios::fixed);
@@ -132,19 +140,13 @@ void ReadFitOptions(const Field& field, const std::string& file, const std::stri
   m.Finish();
   FitOptions& o = out.options;
   auto note = [&](const Field& f) { out.keys.emplace_back(f.key, f.key_at); };
-  auto to_int = [](const Field& f) {
-    const long long v = f.Integer();
-    if (v < -2147483647LL || v > 2147483647LL)
-      throw InputError(f.at, Quote(f.path) + " = " + f.Scalar() + " is too large");
-    return static_cast<int>(v);
-  };
   if (loss) {
     note(loss);
     o.loss = ParseChoice<RobustLoss>(
         loss, {{"none", RobustLoss::kNone}, {"huber", RobustLoss::kHuber}, {"cauchy", RobustLoss::kCauchy}});
   }
   if (loss_scale) note(loss_scale), o.loss_scale = loss_scale.Number();
-  if (multistart) note(multistart), o.multistart = to_int(multistart);
+  if (multistart) note(multistart), o.multistart = ToInt(multistart);
   if (spread) note(spread), o.start_spread = spread.Number();
   if (seed) {
     note(seed);
@@ -152,7 +154,7 @@ void ReadFitOptions(const Field& field, const std::string& file, const std::stri
     if (v < 0) throw InputError(seed.at, Quote(seed.path) + " = " + seed.Scalar() + " must be >= 0");
     o.seed = static_cast<std::uint64_t>(v);
   }
-  if (iters) note(iters), o.max_iterations = to_int(iters);
+  if (iters) note(iters), o.max_iterations = ToInt(iters);
   if (ftol) note(ftol), o.function_tolerance = ftol.Number();
   if (gtol) note(gtol), o.gradient_tolerance = gtol.Number();
   if (ptol) note(ptol), o.parameter_tolerance = ptol.Number();
@@ -704,12 +706,6 @@ void ReadBandSettings(const Field& f, const std::string& file, const std::string
   m.Finish();
   bands::BandOptions& o = into.options;
   std::vector<std::pair<std::string, SourceLocation>> keys;
-  auto to_int = [](const Field& x) {
-    const long long v = x.Integer();
-    if (v < -2147483647LL || v > 2147483647LL)
-      throw InputError(x.at, Quote(x.path) + " = " + x.Scalar() + " is too large");
-    return static_cast<int>(v);
-  };
   if (conf) {
     keys.emplace_back("confidence", conf.at);
     o.confidence = conf.Number();
@@ -732,8 +728,8 @@ void ReadBandSettings(const Field& f, const std::string& file, const std::string
       flag = true;
     }
   }
-  if (draws) keys.emplace_back("monte_carlo_draws", draws.at), o.monte_carlo_draws = to_int(draws);
-  if (reps) keys.emplace_back("bootstrap_replicates", reps.at), o.bootstrap_replicates = to_int(reps);
+  if (draws) keys.emplace_back("monte_carlo_draws", draws.at), o.monte_carlo_draws = ToInt(draws);
+  if (reps) keys.emplace_back("bootstrap_replicates", reps.at), o.bootstrap_replicates = ToInt(reps);
   if (kind)
     o.bootstrap_kind = ParseChoice<bands::BootstrapKind>(
         kind, {{"residual", bands::BootstrapKind::kResidual}, {"wild", bands::BootstrapKind::kWild}});
@@ -775,7 +771,7 @@ void ReadBandSettings(const Field& f, const std::string& file, const std::string
             spacing, {{"linear", bands::GridSpacing::kLinear}, {"log", bands::GridSpacing::kLog}});
       if (from) spec.from = ParseQuantity(from, Quantity::kPressure);
       if (to) spec.to = ParseQuantity(to, Quantity::kPressure);
-      if (count) spec.count = to_int(count);
+      if (count) spec.count = ToInt(count);
     }
     if (const std::string bad = spec.Validate(); !bad.empty()) {
       SourceLocation where = g.at();
