@@ -142,6 +142,7 @@ nlohmann::ordered_json BranchesJson(const StudyRun& run) {
       }
       tests.push_back({{"model", t.model_id},
                        {"scope", t.scope},
+                       {"unit", "1 (counts, F, p_value, critical, level, AICc; RSS in rss_unit)"},
                        {"members", MemberIds(run.study, t.members)},
                        {"tested", t.tested},
                        {"reason", t.reason},
@@ -176,6 +177,7 @@ nlohmann::ordered_json BranchesJson(const StudyRun& run) {
                           {"sigma_dK_GPa", Number(h.sigma_dk[i] / G)}});
       hyst.push_back({{"model", h.model_id},
                       {"pair", h.pair},
+                      {"unit", "1 (max_relative_dK = dK/K_a); pressures in MPa, moduli in GPa"},
                       {"sample_a", run.study.samples[h.a].sample.id},
                       {"sample_b", run.study.samples[h.b].sample.id},
                       {"loading_unloading", h.loading_unloading},
@@ -194,6 +196,7 @@ nlohmann::ordered_json BranchesJson(const StudyRun& run) {
                     {"hysteresis", hyst}});
   }
   return {{"note", kPooledNote},
+          {"unit", "1 (level, grid_points)"},
           {"level", Number(run.study.branch_tests.level)},
           {"grid_points", run.study.branch_tests.grid_points},
           {"sets", sets}};
