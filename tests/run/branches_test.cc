@@ -135,6 +135,28 @@ TEST(BranchTests, FalseAlarmRateIsNearTheNominalLevel) {
   EXPECT_LE(rejected, 6);
 }
 
+// The 2-sigma hysteresis band should cover the true dK at about the rate of
+// |t_9| < 2 (0.92, each fit has 12 - 3 dof; common practice) when the model
+// is right; pooled over 30 seeded plugs and 11 grid points.
+TEST(BranchTests, HysteresisBandCoversTheTrueDifferenceAtNearTheNominalRate) {
+  int covered = 0, total = 0;
+  for (std::uint64_t seed = 300; seed < 330; ++seed) {
+    const StudyRun run = RunOf({Plug("L1", "QV-C", Branch::kLoading, 1, kLoading, 2 * seed),
+                                Plug("U1", "QV-C", Branch::kUnloading, 1, kUnloading, 2 * seed + 1)});
+    const Hysteresis& h = run.branches.at(0).hysteresis.at(0);
+    ASSERT_TRUE(h.computed) << h.reason;
+    for (size_t i = 0; i < h.pressure.size(); ++i) {
+      const double p = h.pressure[i] / kMPa;
+      const double truth = (kUnloading(p) - kLoading(p)) * kGPa;
+      covered += std::fabs(h.dk[i] - truth) <= 2 * h.sigma_dk[i] ? 1 : 0;
+      ++total;
+    }
+  }
+  EXPECT_EQ(total, 330);
+  EXPECT_GE(covered, 0.85 * total) << covered << " of " << total;
+  EXPECT_LE(covered, 0.99 * total) << covered << " of " << total;
+}
+
 TEST(BranchTests, PooledFitEqualsAPlainFitOnConcatenatedData) {
   const StudySample a = Plug("L1", "QV-4", Branch::kLoading, 1, kLoading, 31);
   const StudySample b = Plug("U1", "QV-4", Branch::kUnloading, 1, kUnloading, 32);
