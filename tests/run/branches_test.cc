@@ -337,6 +337,21 @@ TEST(PlugKey, MixedMeasurementKindsFormSeparateSets) {
   EXPECT_EQ(sets[1].members, (std::vector<size_t>{2, 3}));
 }
 
+TEST(PlugKey, ADifferentDescriptionOfOnePlugIsWarnedAbout) {
+  std::string second = SampleYaml("S-U1", "QV14-2231", "static", "unloading", 1);
+  second.replace(second.find("porosity: 0.2"), 13, "porosity: 0.25");
+  const Study st = ParseStudy(std::string(kStudyHead) + SampleYaml("S-L1", "QV14-2231", "static", "loading", 1) + second,
+                              "plugs.yaml", ModelRegistry::Builtin());
+  ASSERT_EQ(st.warnings.size(), 1u);
+  EXPECT_EQ(st.warnings[0],
+            "plugs.yaml:17:11: warning: sample 'S-U1' of plug 'QV14-2231' differs from 'S-L1' of the same plug in "
+            "porosity; one plug is one piece of rock: check the sample descriptions");
+  const Study same = ParseStudy(std::string(kStudyHead) + SampleYaml("S-L1", "QV14-2231", "static", "loading", 1) +
+                                    SampleYaml("S-U1", "QV14-2231", "static", "unloading", 1),
+                                "plugs.yaml", ModelRegistry::Builtin());
+  EXPECT_TRUE(same.warnings.empty());
+}
+
 TEST(PlugKey, SameBranchAndCycleTwiceIsAmbiguous) {
   const std::string text = std::string(kStudyHead) + SampleYaml("S-L1", "QV14-2231", "static", "loading", 1) +
                            SampleYaml("S-L1b", "QV14-2231", "static", "loading", 1);

@@ -1,6 +1,7 @@
 #include "branch_settings.h"
 
-#include <cmath>
+#include <string>
+#include <vector>
 
 namespace porofit::io::detail {
 
@@ -34,6 +35,24 @@ void CheckPlugIsUnambiguous(const std::vector<StudySample>& prior, const Sample&
                                " ('" + o.id + "', line " + std::to_string(o.where.line) +
                                "): ambiguous; give each branch and cycle of a plug one sample");
   }
+}
+
+std::string PlugConsistencyWarning(const std::vector<StudySample>& prior, const Sample& s) {
+  for (const StudySample& p : prior) {
+    const Sample& o = p.sample;
+    if (o.plug != s.plug) continue;
+    std::vector<std::string> diffs;
+    if (o.lithology != s.lithology) diffs.push_back("lithology");
+    if (o.porosity != s.porosity) diffs.push_back("porosity");
+    if (o.bulk_density != s.bulk_density) diffs.push_back("bulk_density");
+    if (o.orientation != s.orientation) diffs.push_back("orientation");
+    if (diffs.empty()) return {};
+    std::string list;
+    for (const std::string& d : diffs) list += (list.empty() ? "" : ", ") + d;
+    return "sample '" + s.id + "' of plug '" + s.plug + "' differs from '" + o.id + "' of the same plug in " + list +
+           "; one plug is one piece of rock: check the sample descriptions";
+  }
+  return {};
 }
 
 }  // namespace porofit::io::detail

@@ -17,4 +17,9 @@ BranchTestSettings ReadBranchTestSettings(const Field& f, const std::string& fil
 /// `s`: the branch set would be ambiguous.
 void CheckPlugIsUnambiguous(const std::vector<StudySample>& prior, const Sample& s, const SourceLocation& at);
 
+/// A warning (without location) when `s` describes its plug differently from
+/// the first earlier sample of that plug: lithology, porosity, bulk density
+/// or orientation differ (a plug is one piece of rock). "" when consistent.
+std::string PlugConsistencyWarning(const std::vector<StudySample>& prior, const Sample& s);
+
 }  // namespace porofit::io::detail

@@ -1072,6 +1072,7 @@ void Loader::ReadSample(const YAML::Node& node, size_t index) {
     s.plug = plug.Scalar();
     if (s.plug.empty()) throw InputError(plug.at, "'plug' must not be empty");
     io::detail::CheckPlugIsUnambiguous(study_.samples, s, plug.at);
+    if (const std::string w = io::detail::PlugConsistencyWarning(study_.samples, s); !w.empty()) Warn(plug.at, w);
   }
   if (coefficient) {
     s.effective_pressure_coefficient = coefficient.Number();
