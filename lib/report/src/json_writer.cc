@@ -491,6 +491,7 @@ Json ResultsJson(const StudyRun& run, const std::vector<InputDigest>& inputs, co
                          {"location", m.where.ToString()}});
   j["mineral_overrides"] = overrides;
   j["alpha_notes"] = {detail::CorrelationCaveat()};
+  j["joint_fits"] = JointFitsJson(run);
   return j;
 }
 
