@@ -10,6 +10,7 @@
 #include <cmath>
 #include <random>
 
+#include "porofit/bands/bands.h"
 #include "porofit/compare/joint_vs_separate.h"
 #include "porofit/models/registry.h"
 
@@ -156,6 +157,42 @@ TEST(JointFit, SharingEveryParameterOfDuplicatedDataEqualsPlainFitOnConcatenated
     EXPECT_EQ(j.coordinates[static_cast<size_t>(c)].name, q.name);
     EXPECT_NEAR(j.coordinates[static_cast<size_t>(c)].estimate, q.estimate, 1e-8 * std::abs(q.estimate)) << q.name;
     EXPECT_NEAR(j.coordinates[static_cast<size_t>(c)].std_error, q.std_error, 1e-8 * q.std_error) << q.name;
+  }
+}
+
+// The band layer used on a view: the K standard error is the delta method on
+// the view's covariance block (which holds the shared P_close variance), with
+// the joint degrees of freedom, and it exceeds the conditional standard error
+// with P_close known (Schur complement), i.e. the shared variance is in it.
+TEST(JointFit, DeltaBandsOfAViewCarryTheSharedParameterVariance) {
+  const JointFitRequest req = Facies({12e6, 12e6, 12e6, 12e6}, 909);
+  const JointFitResult r = FitJoint(req);
+  ASSERT_EQ(r.status, FitStatus::kConverged) << r.message;
+  const FitResult& view = r.datasets[1];
+  const FitRequest fr = SeparateRequest(req, 1);
+  bands::BandRequest br;
+  br.fit_request = &fr;
+  br.fit = &view;
+  br.k_s = 37e9;
+  br.grid.pressure = {5e6, 20e6, 40e6};
+  br.grid.extrapolated = {false, false, false};
+  br.grid.data_min = 2e6;
+  br.grid.data_max = 60e6;
+  const bands::DeltaResult d = bands::ComputeDeltaBands(br);
+  ASSERT_TRUE(d.computed) << d.message;
+  EXPECT_EQ(d.k_dof, r.dof);
+  const bands::CurveGradient cg = bands::EvaluateCurve(view, ExpModulus(), br.grid.pressure);
+  for (size_t i = 0; i < 3; ++i) {
+    const Eigen::Map<const Eigen::VectorXd> g(cg.gradient[i].data(), 3);
+    const double full = std::sqrt(g.dot(view.covariance * g));
+    // P_close is the third free parameter: Cov(K_inf, K_0 | P_close) = C11 - C12 C21 / C22.
+    const Eigen::MatrixXd& c = view.covariance;
+    const Eigen::MatrixXd given = c.topLeftCorner(2, 2) - c.topRightCorner(2, 1) * c.bottomLeftCorner(1, 2) / c(2, 2);
+    const Eigen::Vector2d g2 = g.head(2);
+    EXPECT_NEAR(d.k_se[i], full, 1e-9 * full);
+    const double known = std::sqrt(g2.dot(given * g2));
+    EXPECT_GT(full, known) << "P = " << br.grid.pressure[i];
+    if (i == 1) EXPECT_GT(full, 1.05 * known);  // near P_close the shared variance matters most (12 %, measured)
   }
 }
 
