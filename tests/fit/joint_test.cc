@@ -192,7 +192,9 @@ TEST(JointFit, DeltaBandsOfAViewCarryTheSharedParameterVariance) {
     EXPECT_NEAR(d.k_se[i], full, 1e-9 * full);
     const double known = std::sqrt(g2.dot(given * g2));
     EXPECT_GT(full, known) << "P = " << br.grid.pressure[i];
-    if (i == 1) EXPECT_GT(full, 1.05 * known);  // near P_close the shared variance matters most (12 %, measured)
+    if (i == 1) {  // near P_close the shared variance matters most (12 %, measured)
+      EXPECT_GT(full, 1.05 * known);
+    }
   }
 }
 
