@@ -14,6 +14,7 @@
 #include <vector>
 
 #include "porofit/bands/bands.h"
+#include "porofit/compare/summary.h"
 #include "porofit/fit/fit_result.h"
 #include "porofit/fit/fitter.h"
 #include "porofit/io/study.h"
@@ -88,12 +89,16 @@ struct SampleRun {
   /// The four stiffness fits (C11, C12, C13, C33) when vti_stiffness.fit is
   /// given, else empty.
   std::vector<VtiStiffnessFit> vti_fits;
+  /// Model comparison of `fits` (Study::comparison; lib/run/src/compare_run.cc).
+  compare::SampleComparison comparison;
 };
 
 struct StudyRun {
   Study study;
   std::vector<SampleRun> samples;  ///< parallel to study.samples
   RunMetadata metadata;
+  /// Model comparison across samples, grouped by Study::comparison.group_by.
+  compare::ComparisonSummary comparison_summary;
 };
 
 /// True if every data point of `s` has a sigma (> 0): the fit is weighted by
@@ -126,6 +131,16 @@ std::vector<VtiAlphaPoint> RunVti(const StudySample& sample, const ModelRegistry
 /// Runs the whole study. Requires options.Validate().empty() (checked: a bad
 /// option is a programmer error and aborts).
 StudyRun RunStudy(const Study& study, const RunOptions& options);
+
+/// A sample's fields for grouping: id, lithology, orientation, measurement,
+/// branch, cycle (compare::StandardSampleFields()).
+compare::SampleFieldMap SampleFieldValues(const Sample& s);
+/// Compares the fits of one sample (in the order of sample.models); the
+/// cross-validation refits use MakeFitRequest(). Never throws for bad fits.
+compare::SampleComparison RunComparison(const StudySample& sample, const std::vector<FitResult>& fits,
+                                        const compare::ComparisonOptions& options, const ModelRegistry& registry);
+/// The across-sample summary of run.samples[i].comparison, in sample order.
+compare::ComparisonSummary SummarizeComparisons(const StudyRun& run);
 
 /// Current UTC time as "YYYY-MM-DDThh:mm:ssZ".
 std::string UtcTimestampNow();
