@@ -17,7 +17,8 @@ std::vector<InputDigest> DigestInputs(const Study& study) {
 
 std::vector<std::string> ReportFileNames() {
   return {"summary.txt", "parameters.csv", "fits.csv",          "residuals.csv",
-          "alpha.csv",   "grain_modulus.csv", "alpha_vti.csv", "results.json"};
+          "alpha.csv",   "grain_modulus.csv", "alpha_vti.csv", "comparison.csv", "nested_tests.csv", "comparison_groups.csv",
+          "results.json"};
 }
 
 void WriteReportFolder(const StudyRun& run, const std::filesystem::path& folder,
@@ -40,6 +41,9 @@ void WriteReportFolder(const StudyRun& run, const std::filesystem::path& folder,
         emit("alpha.csv", [&](std::ostream& o) { WriteAlphaCsv(run, o); });
         emit("grain_modulus.csv", [&](std::ostream& o) { WriteGrainModulusCsv(run, o); });
         emit("alpha_vti.csv", [&](std::ostream& o) { WriteVtiAlphaCsv(run, o); });
+        emit("comparison.csv", [&](std::ostream& o) { WriteComparisonCsv(run, o); });
+        emit("nested_tests.csv", [&](std::ostream& o) { WriteNestedTestsCsv(run, o); });
+        emit("comparison_groups.csv", [&](std::ostream& o) { WriteComparisonGroupsCsv(run, o); });
         emit("results.json", [&](std::ostream& o) { WriteResultsJson(run, inputs, o, options); });
       },
       folder_options);

@@ -2,6 +2,7 @@
 #include <cmath>
 #include <cstdio>
 
+#include "comparison_writer.h"
 #include "format.h"
 #include "porofit/core/units.h"
 #include "porofit/report/report.h"
@@ -164,6 +165,7 @@ void SampleBlock(const StudySample& ss, const SampleRun& sr, std::ostream& out) 
   } else {
     out << "  No converged fit with a defined AICc.\n";
   }
+  detail::WriteSampleComparisonLines(sr.comparison, out);
   AlphaBlock(ss, sr, best, out);
 }
 
@@ -189,6 +191,7 @@ void WriteSummary(const StudyRun& run, std::ostream& out) {
     out << "\n";
     SampleBlock(run.study.samples[i], run.samples[i], out);
   }
+  detail::WriteComparisonGroupTable(run, out);
   out << "\nRMSE from raw residuals. AICc: lower is better, compare only fits of the same sample; a gap under 2 "
          "does not separate two models (Burnham & Anderson 2002). Check every flag and note before using a fit; "
          "flags are explained in docs/outputs.md.\n";
