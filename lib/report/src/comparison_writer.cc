@@ -58,6 +58,7 @@ std::vector<std::string> CvFields(const compare::CrossValidationScore& c, bool w
 Json CvJson(const compare::CrossValidationScore& c) {
   return {{"computed", c.computed},
           {"reason", c.reason},
+          {"unit", "counts; rms_standardized in sigma units (1)"},
           {"refits", c.folds},
           {"refits_failed", c.refits_failed},
           {"points_predicted", c.points_predicted},
@@ -165,6 +166,7 @@ nlohmann::ordered_json SampleComparisonJson(const compare::SampleComparison& c) 
   Json models = Json::array();
   for (const compare::ModelScore& m : c.models) {
     models.push_back({{"model", m.model_id},
+                      {"unit", "1 (criteria, differences, weights dimensionless; n, k counts)"},
                       {"included", m.included},
                       {"excluded_reason", m.excluded_reason},
                       {"n", m.n},
@@ -185,6 +187,7 @@ nlohmann::ordered_json SampleComparisonJson(const compare::SampleComparison& c) 
     Json tj{{"restricted", t.restricted},
             {"fuller", t.fuller},
             {"relation", std::string(compare::ToString(t.kind))},
+            {"unit", "1 (F, p, critical and level dimensionless; df counts)"},
             {"restriction", t.restriction},
             {"tested", t.tested}};
     if (t.tested) {
@@ -201,7 +204,8 @@ nlohmann::ordered_json SampleComparisonJson(const compare::SampleComparison& c) 
     tests.push_back(tj);
   }
   j["nested_tests"] = tests;
-  j["cross_validation"] = {{"leave_one_out", c.cross_validation.leave_one_out},
+  j["cross_validation"] = {{"unit", "points"},
+                           {"leave_one_out", c.cross_validation.leave_one_out},
                            {"high_pressure_holdout", c.cross_validation.high_pressure_holdout},
                            {"holdout_points", c.cross_validation.holdout_points}};
   j["notes"] = c.notes;
@@ -213,9 +217,11 @@ nlohmann::ordered_json ComparisonSummaryJson(const StudyRun& run) {
   const compare::ComparisonOptions& o = run.study.comparison;
   Json j;
   j["criterion"] = std::string(compare::ToString(s.criterion));
+  j["unit"] = "1 (criterion scores, weights and the level dimensionless; counts)";
   j["group_by"] = s.group_by;
   j["f_test_level"] = Number(o.f_test_level);
-  j["cross_validation"] = {{"leave_one_out", o.cross_validation.leave_one_out},
+  j["cross_validation"] = {{"unit", "points"},
+                           {"leave_one_out", o.cross_validation.leave_one_out},
                            {"high_pressure_holdout", o.cross_validation.high_pressure_holdout},
                            {"holdout_points", o.cross_validation.holdout_points}};
   j["samples"] = s.samples;
@@ -224,6 +230,7 @@ nlohmann::ordered_json ComparisonSummaryJson(const StudyRun& run) {
     Json models = Json::array();
     for (const compare::GroupModelSummary& m : g.models)
       models.push_back({{"model", m.model_id},
+                        {"unit", "1 (criterion scores and weights dimensionless; counts)"},
                         {"samples_with_model", m.samples_with_model},
                         {"samples_usable", m.samples_usable},
                         {"wins", m.wins},
@@ -231,6 +238,7 @@ nlohmann::ordered_json ComparisonSummaryJson(const StudyRun& run) {
                         {"median_weight", Number(m.median_weight)},
                         {"mean_delta", Number(m.mean_delta)}});
     groups.push_back({{"key", g.key},
+                      {"unit", "samples"},
                       {"label", g.label},
                       {"samples", g.samples},
                       {"samples_compared", g.samples_compared},

@@ -13,6 +13,7 @@
 // that cannot be made says why. Deterministic: refits are seeded through
 // FitOptions::seed and start from the full fit's estimate.
 #include <cstddef>
+#include <limits>
 #include <span>
 #include <string>
 #include <string_view>
@@ -78,11 +79,11 @@ struct CrossValidationScore {
   int folds = 0;              ///< refits attempted (n for LOO, 1 for holdout)
   int refits_failed = 0;      ///< refits that did not converge (their points are not scored)
   int points_predicted = 0;   ///< held-out points scored
-  double rmse = 0;            ///< sqrt(mean e^2), e = observed - predicted, Pa
-  double mean_error = 0;      ///< mean e (bias; > 0: the model under-predicts), Pa
+  double rmse = std::numeric_limits<double>::quiet_NaN();  ///< sqrt(mean e^2), e = observed - predicted, Pa
+  double mean_error = std::numeric_limits<double>::quiet_NaN();  ///< mean e (bias; > 0: the model under-predicts), Pa
   /// sqrt(mean (e_i/sigma_i)^2) with the sample's declared sigma_i (not
   /// rescaled, so the same for every model); NaN when the sample is unweighted.
-  double rms_standardized = 0;
+  double rms_standardized = std::numeric_limits<double>::quiet_NaN();
   int rank = 0;               ///< 1 = best among models with every refit converged; 0 = not ranked
 };
 
@@ -93,12 +94,13 @@ struct ModelScore {
   std::string excluded_reason;  ///< why not (empty when included)
   int n = 0;                    ///< data points
   int k = 0;                    ///< estimated quantities in the criteria (free parameters, + 1 if the noise level is estimated)
-  double aic = 0, aicc = 0, bic = 0;  ///< NaN when not computed
+  static constexpr double kNotComputed = std::numeric_limits<double>::quiet_NaN();
+  double aic = kNotComputed, aicc = kNotComputed, bic = kNotComputed;  ///< NaN when not computed
   bool aicc_defined = false;    ///< n > k + 1
   /// Differences to the best included model and Akaike weights (AIC, AICc,
   /// BIC), over the included models with that score defined; NaN otherwise.
-  double delta_aic = 0, delta_aicc = 0, delta_bic = 0;
-  double weight_aic = 0, weight_aicc = 0, weight_bic = 0;
+  double delta_aic = kNotComputed, delta_aicc = kNotComputed, delta_bic = kNotComputed;
+  double weight_aic = kNotComputed, weight_aicc = kNotComputed, weight_bic = kNotComputed;
   int rank = 0;                 ///< by the criterion, 1 = best; 0 = not ranked
   CrossValidationScore leave_one_out, holdout;
 };
