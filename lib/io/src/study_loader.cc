@@ -16,6 +16,7 @@
 #include "branch_settings.h"
 #include "scalar.h"
 #include "study_joint.h"
+#include "study_comparison.h"
 #include "yaml_map.h"
 
 namespace porofit {
@@ -832,6 +833,7 @@ Study Loader::Parse(std::string_view text) {
         defaults = top.Get("defaults"), samples = top.Get("samples"), minerals = top.Get("minerals"),
         grain_moduli = top.Get("grain_moduli"), branch_tests = top.Get("branch_tests"),
         joint_fits = top.Get("joint_fits");
+  Field comparison = top.Get("comparison");
   top.Finish();
   if (version && version.Integer() != 1)
     throw InputError(version.at, "version = " + version.Scalar() + " is not supported (this loader reads version 1)");
@@ -875,6 +877,7 @@ Study Loader::Parse(std::string_view text) {
     if (models) default_models_ = ReadModels(models, file_, registry_);
   }
 
+  if (comparison) io::detail::ReadComparison(comparison, file_, study_.comparison);
   if (!samples) throw InputError(top.at(), "missing required key 'samples' in the study");
   samples.ExpectList();
   if (samples.node.size() == 0) throw InputError(samples.at, "'samples' is empty: the study has no samples");

@@ -1,6 +1,7 @@
 #include <cmath>
 
 #include "branch_writer.h"
+#include "comparison_writer.h"
 #include "format.h"
 #include "porofit/core/units.h"
 #include "porofit/report/report.h"
@@ -476,9 +477,11 @@ Json ResultsJson(const StudyRun& run, const std::vector<InputDigest>& inputs, co
       }
       js["vti_fit"] = {{"model", ss.vti_fit_model}, {"stiffness_fits", stiffness_fits}};
     }
+    if (i < run.samples.size()) js["comparison"] = detail::SampleComparisonJson(run.samples[i].comparison);
     samples.push_back(js);
   }
   j["samples"] = samples;
+  j["comparison_summary"] = detail::ComparisonSummaryJson(run);
   Json overrides = Json::array();
   for (const poro::Mineral& m : run.study.mineral_overrides)
     overrides.push_back({{"name", m.name},

@@ -3,6 +3,7 @@
 #include <cstdio>
 
 #include "branch_writer.h"
+#include "comparison_writer.h"
 #include "format.h"
 #include "porofit/core/units.h"
 #include "porofit/report/report.h"
@@ -165,6 +166,7 @@ void SampleBlock(const StudySample& ss, const SampleRun& sr, std::ostream& out) 
   } else {
     out << "  No converged fit with a defined AICc.\n";
   }
+  detail::WriteSampleComparisonLines(sr.comparison, out);
   AlphaBlock(ss, sr, best, out);
 }
 
@@ -190,6 +192,7 @@ void WriteSummary(const StudyRun& run, std::ostream& out) {
     out << "\n";
     SampleBlock(run.study.samples[i], run.samples[i], out);
   }
+  detail::WriteComparisonGroupTable(run, out);
   detail::WriteBranchSummary(run, out);
   WriteJointSummary(run, out);
   out << "\nRMSE from raw residuals. AICc: lower is better, compare only fits of the same sample; a gap under 2 "

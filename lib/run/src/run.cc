@@ -301,6 +301,7 @@ StudyRun RunStudy(const Study& study, const RunOptions& options) {
     run.samples[i].bands = std::move(band_results);
     run.samples[i].vti = std::move(vti);
     run.samples[i].vti_fits = std::move(vti_fits);
+    run.samples[i].comparison = RunComparison(s, run.samples[i].fits, study.comparison, registry);
   };
 
   const size_t workers = std::min<size_t>(static_cast<size_t>(options.threads), n_samples);
@@ -317,6 +318,7 @@ StudyRun RunStudy(const Study& study, const RunOptions& options) {
     }
     for (std::thread& t : pool) t.join();
   }
+  run.comparison_summary = SummarizeComparisons(run);
   run.branches = RunBranches(study, run.samples, registry);  // after every per-sample fit
   for (const JointFitChoice& j : study.joint_fits) run.joint_fits.push_back(RunJoint(study, j, registry));
   run.metadata.wall_seconds =

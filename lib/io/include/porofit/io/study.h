@@ -8,6 +8,7 @@
 
 #include "porofit/bands/grid.h"
 #include "porofit/bands/options.h"
+#include "porofit/compare/comparison.h"
 #include "porofit/core/error.h"
 #include "porofit/core/sample.h"
 #include "porofit/fit/fit_options.h"
@@ -129,6 +130,8 @@ struct Study {
   /// Minerals the study's `minerals:` section adds to or overrides in
   /// poro::MineralTable::Builtin(), in name order.
   std::vector<poro::Mineral> mineral_overrides;
+  /// Model comparison settings (top-level `comparison:`; defaults when absent).
+  compare::ComparisonOptions comparison;
   /// Non-fatal findings of the loader, each "file:line:col: warning: message"
   /// (e.g. Vp/Vs <= sqrt(2), a Poisson ratio <= 0), in file order.
   std::vector<std::string> warnings;

@@ -31,7 +31,8 @@ namespace porofit {
 /// Version of the JSON layout; bumped when a field changes meaning or goes away.
 /// 2: adds per-sample "grain_modulus", "fluid_modulus", "band_settings",
 /// "vti_alpha", per-fit "alpha", top-level "mineral_overrides" and "alpha_notes".
-inline constexpr int kResultsSchemaVersion = 2;
+/// 3: adds per-sample "comparison" and top-level "comparison_summary".
+inline constexpr int kResultsSchemaVersion = 3;
 
 /// An input file with its digest, for provenance.
 struct InputDigest {
@@ -73,6 +74,13 @@ void WriteGrainModulusCsv(const StudyRun& run, std::ostream& out);
 /// alpha_vti.csv: one row per VTI stiffness row of a sample with K_s.
 void WriteVtiAlphaCsv(const StudyRun& run, std::ostream& out);
 
+/// comparison.csv: one row per (sample, model): criteria, differences,
+/// weights, rank and cross-validation scores.
+void WriteComparisonCsv(const StudyRun& run, std::ostream& out);
+/// nested_tests.csv: one row per (sample, pair of models): F test or why not.
+void WriteNestedTestsCsv(const StudyRun& run, std::ostream& out);
+/// comparison_groups.csv: one row per (group of samples, model).
+void WriteComparisonGroupsCsv(const StudyRun& run, std::ostream& out);
 /// branch_tests.csv: one row per (branch set, model, scope): joint (pooled,
 /// for the test only) against separate fits (porofit/run/branches.h).
 void WriteBranchTestsCsv(const StudyRun& run, std::ostream& out);

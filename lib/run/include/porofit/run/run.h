@@ -15,6 +15,7 @@
 
 #include "porofit/bands/bands.h"
 #include "porofit/compare/joint_vs_separate.h"
+#include "porofit/compare/summary.h"
 #include "porofit/fit/fit_result.h"
 #include "porofit/fit/fitter.h"
 #include "porofit/fit/joint.h"
@@ -91,6 +92,8 @@ struct SampleRun {
   /// The four stiffness fits (C11, C12, C13, C33) when vti_stiffness.fit is
   /// given, else empty.
   std::vector<VtiStiffnessFit> vti_fits;
+  /// Model comparison of `fits` (Study::comparison; lib/run/src/compare_run.cc).
+  compare::SampleComparison comparison;
 };
 
 /// One entry of Study::joint_fits, run by RunJoint() (lib/run/src/joint_run.cc).
@@ -119,6 +122,8 @@ struct StudyRun {
   std::vector<BranchSetRun> branches;
   std::vector<JointRun> joint_fits;  ///< parallel to study.joint_fits
   RunMetadata metadata;
+  /// Model comparison across samples, grouped by Study::comparison.group_by.
+  compare::ComparisonSummary comparison_summary;
 };
 
 /// True if every data point of `s` has a sigma (> 0): the fit is weighted by
@@ -156,6 +161,16 @@ JointRun RunJoint(const Study& study, const JointFitChoice& choice, const ModelR
 /// Runs the whole study. Requires options.Validate().empty() (checked: a bad
 /// option is a programmer error and aborts).
 StudyRun RunStudy(const Study& study, const RunOptions& options);
+
+/// A sample's fields for grouping: id, lithology, orientation, measurement,
+/// branch, cycle (compare::StandardSampleFields()).
+compare::SampleFieldMap SampleFieldValues(const Sample& s);
+/// Compares the fits of one sample (in the order of sample.models); the
+/// cross-validation refits use MakeFitRequest(). Never throws for bad fits.
+compare::SampleComparison RunComparison(const StudySample& sample, const std::vector<FitResult>& fits,
+                                        const compare::ComparisonOptions& options, const ModelRegistry& registry);
+/// The across-sample summary of run.samples[i].comparison, in sample order.
+compare::ComparisonSummary SummarizeComparisons(const StudyRun& run);
 
 /// Current UTC time as "YYYY-MM-DDThh:mm:ssZ".
 std::string UtcTimestampNow();
