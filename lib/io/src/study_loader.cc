@@ -14,6 +14,7 @@
 #include "porofit/core/units.h"
 #include "porofit/io/csv.h"
 #include "scalar.h"
+#include "study_user_models.h"
 #include "yaml_map.h"
 
 namespace porofit {
@@ -787,7 +788,7 @@ void ReadBandSettings(const Field& f, const std::string& file, const std::string
 
 class Loader {
  public:
-  Loader(std::string path, const ModelRegistry& registry) : file_(std::move(path)), registry_(registry) {}
+  Loader(std::string path, const ModelRegistry& registry) : file_(std::move(path)), registry_(&registry) {}
 
   Study Parse(std::string_view text);
 
@@ -800,7 +801,8 @@ class Loader {
   }
 
   std::string file_;
-  const ModelRegistry& registry_;
+  const ModelRegistry* registry_;  // the given catalogue, or it plus the study's user models
+  ModelRegistry with_user_models_;
   Study study_;
   FitOptionsRead defaults_fit_;
   bool has_default_fit_ = false;
@@ -828,13 +830,19 @@ Study Loader::Parse(std::string_view text) {
   MapReader top(root, file_, "the study");
   Field version = top.Get("version"), name = top.Get("name"), description = top.Get("description"),
         defaults = top.Get("defaults"), samples = top.Get("samples"), minerals = top.Get("minerals"),
-        grain_moduli = top.Get("grain_moduli");
+        grain_moduli = top.Get("grain_moduli"), user_models = top.Get("user_models");
   top.Finish();
   if (version && version.Integer() != 1)
     throw InputError(version.at, "version = " + version.Scalar() + " is not supported (this loader reads version 1)");
   if (!name) throw InputError(top.at(), "missing required key 'name' in the study");
   study_.name = name.Scalar();
   if (description) study_.description = description.Scalar();
+  if (user_models) {  // before defaults and samples, which may name them
+    study_.user_models = io::detail::ReadUserModels(user_models, file_, text, *registry_);
+    with_user_models_ = *registry_;
+    for (const ModelSpec& m : study_.user_models) with_user_models_.Add(m);
+    registry_ = &with_user_models_;
+  }
 
   if (minerals) {
     poro::MineralTable overrides;
@@ -868,7 +876,7 @@ Study Loader::Parse(std::string_view text) {
       ReadFitOptions(fit, file_, "the study defaults", defaults_fit_);
       has_default_fit_ = true;
     }
-    if (models) default_models_ = ReadModels(models, file_, registry_);
+    if (models) default_models_ = ReadModels(models, file_, *registry_);
   }
 
   if (!samples) throw InputError(top.at(), "missing required key 'samples' in the study");
@@ -1226,7 +1234,7 @@ void Loader::ReadSample(const YAML::Node& node, size_t index) {
   s.sigma_absolute = has_sigma && *calibrated;
 
   // Models and fit options.
-  if (models) ss.models = ReadModels(models, file_, registry_);
+  if (models) ss.models = ReadModels(models, file_, *registry_);
   else ss.models = default_models_;
   if (ss.models.empty())
     throw InputError(m.at(), what + " has no models: list them under 'models' here or in 'defaults'");
@@ -1284,7 +1292,7 @@ void Loader::ReadSample(const YAML::Node& node, size_t index) {
   needs_grain(vti);
   needs_grain(band);
   if (fluid) ss.fluid = ReadFluid(fluid, file_, what);
-  if (vti) ss.vti = ReadVti(vti, file_, what, registry_, ss.vti_fit_model, ss.vti_fit_where);
+  if (vti) ss.vti = ReadVti(vti, file_, what, *registry_, ss.vti_fit_model, ss.vti_fit_where);
   ss.bands = default_bands_;
   if (band) ReadBandSettings(band, file_, what, ss.bands);
   study_.samples.push_back(std::move(ss));
