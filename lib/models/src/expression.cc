@@ -211,10 +211,16 @@ class Parser {
       if (options_.columns[k].first == name) column = static_cast<int>(k);
     const bool is_x = name == options_.x_symbol, is_pi = name == "pi";
     if (index < 0 && column < 0 && !is_x && !is_pi) {
-      std::vector<std::string> candidates{options_.x_symbol, "pi", "pow"};
+      // A call suggests functions only; a plain name suggests names first.
+      std::vector<std::string> candidates;
+      if (!AtCall()) {
+        candidates.push_back(options_.x_symbol);
+        candidates.emplace_back("pi");
+        for (const auto& p : params_) candidates.push_back(p.name);
+        for (const auto& c : options_.columns) candidates.push_back(c.first);
+      }
       for (const auto& f : kUnary) candidates.emplace_back(f.name);
-      for (const auto& p : params_) candidates.push_back(p.name);
-      for (const auto& c : options_.columns) candidates.push_back(c.first);
+      candidates.emplace_back("pow");
       const std::string near = NearestWord(name, candidates);
       Fail(start, std::string(AtCall() ? "unknown function '" : "unknown name '") + name + "'" +
                       (near.empty() ? "" : " (did you mean '" + near + "'?)"));
