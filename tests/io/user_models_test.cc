@@ -55,7 +55,7 @@ TEST(UserModels, AreDeclaredWithUnitsBoundsStartAndTransformAndNamedLikeBuiltins
   const std::string text = StudyText(
       "  - id: my-exp\n"
       "    name: exponential closure, my spelling\n"
-      "    reference: Zimmerman (1991), written by hand\n"
+      "    reference: lab notebook 7, p. 12\n"
       "    formula: K_inf - (K_inf - K_0)*exp(-P/P_close)\n"
       "    closure_parameter: P_close\n"
       "    parameters:\n"
@@ -69,7 +69,7 @@ TEST(UserModels, AreDeclaredWithUnitsBoundsStartAndTransformAndNamedLikeBuiltins
   const ModelSpec& m = s.user_models[0];
   EXPECT_EQ(m.id, "my-exp");
   EXPECT_EQ(m.name, "exponential closure, my spelling");
-  EXPECT_EQ(m.reference, "Zimmerman (1991), written by hand");
+  EXPECT_EQ(m.reference, "lab notebook 7, p. 12");
   EXPECT_EQ(m.formula, "K = K_inf - (K_inf - K_0)*exp(-P/P_close)");
   EXPECT_EQ(m.x_unit, "MPa");
   EXPECT_EQ(m.y_unit, "GPa");
