@@ -205,5 +205,17 @@ TEST(UserModels, UnknownParameterOfAUserModelInASampleIsReported) {
   EXPECT_NE(e.message().find("did you mean 'P_close'?"), std::string::npos) << e.message();
 }
 
+TEST(UserModels, AFormulaThatYamlWouldReadAsAListMustBeQuoted) {
+  const std::string quoted = "  - id: my-exp\n    formula: \"[K_inf - K_0]*exp(-P/P_close) + K_0\"\n" + kParams;
+  const Study s = ParseStudy(StudyText(quoted), kPath, ModelRegistry::Builtin());
+  const double th[3] = {20, 8, 10};
+  EXPECT_DOUBLE_EQ(s.user_models[0].value(th, 10.0), 12 * std::exp(-1.0) + 8);
+  const std::string bare = "  - id: my-exp\n    formula: [K_inf - K_0]\n" + kParams;
+  const InputError e = ErrorOf(StudyText(bare));
+  EXPECT_EQ(e.location().ToString(), std::string(kPath) + ":4:14") << e.what();
+  EXPECT_NE(e.message().find("'user_models[1].formula' must be a single value, found a list"), std::string::npos)
+      << e.message();
+}
+
 }  // namespace
 }  // namespace porofit
