@@ -2,6 +2,7 @@
 // forward-mode evaluator that carries (value, derivative vector) per slot.
 #include "porofit/models/expression.h"
 
+#include <algorithm>
 #include <cctype>
 #include <cmath>
 #include <cstdlib>
@@ -247,15 +248,26 @@ class Parser {
 // 0; for the slope (nd = 1), parameters are 0 and P is 1.
 // With data columns, p is the row index: a column step pushes that row's value
 // (NaN for a p that is not a row index).
-double Run(const Tape& tape, const Columns& columns, const double* theta, double p, int nd,
-           bool params_seeded, double* deriv) {
+double Run(const Tape& tape, const Columns& columns, size_t max_depth, const double* theta, double p,
+           int nd, bool params_seeded, double* deriv) {
   const size_t w = static_cast<size_t>(nd) + 1;
-  std::vector<double> st;
-  st.reserve(w * 8);
+  // Scratch: on the stack for the usual small formulas, else a per-thread
+  // buffer that keeps its capacity (no allocation per evaluation either way).
+  constexpr size_t kLocal = 512;
+  double local[kLocal];
+  double* st = local;
+  if (max_depth * w > kLocal) {
+    thread_local std::vector<double> heap;
+    if (heap.size() < max_depth * w) heap.resize(max_depth * w);
+    st = heap.data();
+  }
+  size_t top = 0;  // doubles in use
   auto push = [&](double v) {
-    st.push_back(v);
-    st.resize(st.size() + w - 1, 0.0);
-    return st.data() + st.size() - w;
+    double* a = st + top;
+    a[0] = v;
+    for (size_t k = 1; k < w; ++k) a[k] = 0.0;
+    top += w;
+    return a;
   };
   for (const Step& s : tape) {
     switch (s.op) {
@@ -277,13 +289,13 @@ double Run(const Tape& tape, const Columns& columns, const double* theta, double
         break;
       }
       case Op::kNeg: {
-        double* a = st.data() + st.size() - w;
+        double* a = st + top - w;
         for (size_t k = 0; k < w; ++k) a[k] = -a[k];
         break;
       }
       case Op::kExp: case Op::kLog: case Op::kSqrt: case Op::kSin: case Op::kCos: case Op::kTan:
       case Op::kAtan: {
-        double* a = st.data() + st.size() - w;
+        double* a = st + top - w;
         const double x = a[0];
         double v = 0, d = 0;
         switch (s.op) {
@@ -300,7 +312,7 @@ double Run(const Tape& tape, const Columns& columns, const double* theta, double
         break;
       }
       default: {
-        double* b = st.data() + st.size() - w;
+        double* b = st + top - w;
         double* a = b - w;
         const double x = a[0], y = b[0];
         switch (s.op) {
@@ -331,7 +343,7 @@ double Run(const Tape& tape, const Columns& columns, const double* theta, double
           }
           default: break;
         }
-        st.resize(st.size() - w);
+        top -= w;
       }
     }
   }
@@ -344,7 +356,21 @@ double Run(const Tape& tape, const Columns& columns, const double* theta, double
 struct Compiled {
   Tape tape;
   Columns columns;
+  size_t max_depth = 0;  // deepest evaluation stack of the tape, in slots
 };
+
+size_t MaxDepth(const Tape& tape) {
+  size_t depth = 0, deepest = 0;
+  for (const Step& s : tape) {
+    switch (s.op) {
+      case Op::kConst: case Op::kParam: case Op::kPressure: case Op::kColumn: ++depth; break;
+      case Op::kAdd: case Op::kSub: case Op::kMul: case Op::kDiv: case Op::kPow: --depth; break;
+      default: break;  // one in, one out
+    }
+    deepest = std::max(deepest, depth);
+  }
+  return deepest;
+}
 
 }  // namespace
 
@@ -395,6 +421,7 @@ ModelSpec MakeFormulaModel(std::string id, std::string_view formula,
   auto compiled = std::make_shared<Compiled>();
   compiled->tape = parser.Parse();
   compiled->columns = options.columns;
+  compiled->max_depth = MaxDepth(compiled->tape);
   for (size_t j = 0; j < params.size(); ++j)
     if (!parser.used()[j])
       throw FormulaError(0, "parameter '" + params[j].name + "' does not appear in the formula", params[j].name);
@@ -432,13 +459,13 @@ ModelSpec MakeFormulaModel(std::string id, std::string_view formula,
     starts.push_back(q.start);
   }
   const int n = static_cast<int>(params.size());
-  s.value = [c](const double* theta, double x) { return Run(c->tape, c->columns, theta, x, 0, false, nullptr); };
+  s.value = [c](const double* theta, double x) { return Run(c->tape, c->columns, c->max_depth, theta, x, 0, false, nullptr); };
   s.value_and_gradient = [c, n](const double* theta, double x, double* grad) {
-    return Run(c->tape, c->columns, theta, x, n, true, grad);
+    return Run(c->tape, c->columns, c->max_depth, theta, x, n, true, grad);
   };
   s.slope = [c](const double* theta, double x) {
     double d = 0;
-    Run(c->tape, c->columns, theta, x, 1, false, &d);
+    Run(c->tape, c->columns, c->max_depth, theta, x, 1, false, &d);
     return d;
   };
   s.start = [starts](std::span<const double>, std::span<const double>) { return starts; };
