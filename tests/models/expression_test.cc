@@ -340,5 +340,19 @@ TEST(FormulaModel, BracketAndNewFunctionErrorsNameTheColumn) {
   EXPECT_THROW(MakeFormulaModel("x", "sin + K_0 + P_close", p), FormulaError);
 }
 
+TEST(FormulaModel, DeeplyNestedFormulasEvaluateExactly) {
+  // 200 nested sums need a deeper evaluation stack than the small-formula
+  // buffer: a + (a + (a + ... + P*b)) = 200 a + P b.
+  std::string f = "P*b";
+  for (int k = 0; k < 200; ++k) f = "a + (" + f + ")";
+  const ModelSpec m = MakeFormulaModel("deep", f, {{"a", "1", 1, -9, 9, 1, ""}, {"b", "1", 1, -9, 9, 1, ""}});
+  const double th[2] = {0.5, 2.0};
+  double g[2];
+  EXPECT_DOUBLE_EQ(m.value_and_gradient(th, 3.0, g), 200 * 0.5 + 3.0 * 2.0);
+  EXPECT_DOUBLE_EQ(g[0], 200.0);
+  EXPECT_DOUBLE_EQ(g[1], 3.0);
+  EXPECT_DOUBLE_EQ(m.slope(th, 3.0), 2.0);
+}
+
 }  // namespace
 }  // namespace porofit
