@@ -86,6 +86,7 @@ TEST(NistFormulaCases, CoverEveryFileOfTheReferenceFolder) {
 TEST_P(NistFormula, MatchesCertifiedValuesFromStart) {
   const auto [index, start] = GetParam();
   const FormulaCase& c = Cases()[static_cast<size_t>(index)];
+  SCOPED_TRACE(std::string("NIST StRD ") + c.file + ", certified values");  // the source of every check below
   testing::NistProblem p =
       testing::ReadNist(std::string(POROFIT_TEST_DATA_DIR) + "/nist/" + c.file + ".dat", c.file);
   const std::vector<double>& s = start == 1 ? p.start1 : p.start2;
