@@ -170,5 +170,33 @@ TEST(StudyRegistry, AddsUserModelsToTheBaseCatalogue) {
   EXPECT_EQ(again.models().size(), r.models().size());
 }
 
+// A user model may also be the stiffness model of `vti_stiffness.fit`.
+TEST(UserModelRun, FitsTheVtiStiffnessesWhenNamedThere) {
+  std::string text = StudyText();
+  // Invented stiffnesses, each C = A - B exp(-P/s) with small perturbations.
+  text += "    vti_stiffness:\n"
+          "      columns: [P MPa, C11 GPa, C12 GPa, C13 GPa, C33 GPa]\n"
+          "      fit: my-exp\n"
+          "      rows:\n"
+         "        - [5, 24.292, 6.031, 5.422, 18.571]\n"
+         "        - [10, 26.688, 6.690, 5.987, 20.669]\n"
+         "        - [15, 28.121, 7.143, 6.364, 22.002]\n"
+         "        - [20, 28.886, 7.424, 6.585, 22.752]\n"
+         "        - [30, 29.663, 7.760, 6.843, 23.572]\n"
+         "        - [40, 29.873, 7.890, 6.931, 23.825]\n";
+  const Study study = ParseStudy(text, "virtual/user-model-study.yaml", ModelRegistry::Builtin());
+  EXPECT_EQ(study.samples[0].vti_fit_model, "my-exp");
+  const StudyRun run = RunStudy(study, RunOptions{});
+  const SampleRun& s = run.samples[0];
+  ASSERT_EQ(s.vti_fits.size(), 4u);
+  for (const VtiStiffnessFit& f : s.vti_fits) {
+    EXPECT_EQ(f.fit.model_id, "my-exp");
+    EXPECT_EQ(f.fit.status, FitStatus::kConverged) << f.component << ": " << f.fit.BriefReport();
+  }
+  size_t fitted = 0;
+  for (const VtiAlphaPoint& p : s.vti) fitted += p.source == "fitted" ? 1 : 0;
+  EXPECT_EQ(fitted, 6u);
+}
+
 }  // namespace
 }  // namespace porofit
