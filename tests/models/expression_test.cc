@@ -354,5 +354,12 @@ TEST(FormulaModel, DeeplyNestedFormulasEvaluateExactly) {
   EXPECT_DOUBLE_EQ(m.slope(th, 3.0), 2.0);
 }
 
+TEST(FormulaModel, AFormulaOverSeveralLinesIsShownOnOne) {
+  const ModelSpec m = MakeFormulaModel("my-exp", "K_inf - (K_inf - K_0)\n    * exp(-P/P_close)\n", ExpModulusParams());
+  EXPECT_EQ(m.formula, "K = K_inf - (K_inf - K_0) * exp(-P/P_close)");
+  const double th[3] = {20, 8, 10};
+  EXPECT_DOUBLE_EQ(m.value(th, 10.0), 20 - 12 * std::exp(-1.0));
+}
+
 }  // namespace
 }  // namespace porofit

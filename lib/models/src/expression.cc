@@ -436,7 +436,18 @@ ModelSpec MakeFormulaModel(std::string id, std::string_view formula,
   s.y_symbol = options.y_symbol;
   s.y_unit = options.y_unit;
   s.y_si_factor = options.y_si_factor;
-  std::string text(formula);
+  // The display text: a formula written over several lines reads as one line
+  // (each line break with the blanks around it becomes one space).
+  std::string text;
+  for (size_t i = 0; i < formula.size(); ++i) {
+    if (formula[i] == '\n' || formula[i] == '\r') {
+      while (!text.empty() && (text.back() == ' ' || text.back() == '\t')) text.pop_back();
+      while (i + 1 < formula.size() && std::isspace(static_cast<unsigned char>(formula[i + 1]))) ++i;
+      text += ' ';
+    } else {
+      text += formula[i];
+    }
+  }
   while (!text.empty() && std::isspace(static_cast<unsigned char>(text.back()))) text.pop_back();
   const size_t first = text.find_first_not_of(" \t\n");
   if (first != std::string::npos) text.erase(0, first);
