@@ -119,7 +119,7 @@ int CmdFit(const std::vector<std::string>& args, const std::string& command_line
   for (const std::string& a : args) {
     if (a == "--help" || a == "-h") {
       std::cout << opts << "\nWrites summary.txt, parameters.csv, fits.csv, residuals.csv, alpha.csv, grain_modulus.csv,\n"
-                              "alpha_vti.csv and results.json "
+                              "alpha_vti.csv, results.json, branch_tests.csv and hysteresis.csv "
                               "(see docs/outputs.md). Nothing is written when loading fails.\n";
       return kExitOk;
     }

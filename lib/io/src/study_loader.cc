@@ -13,6 +13,7 @@
 #include "porofit/core/dynamic.h"
 #include "porofit/core/units.h"
 #include "porofit/io/csv.h"
+#include "branch_settings.h"
 #include "scalar.h"
 #include "study_user_models.h"
 #include "yaml_map.h"
@@ -830,13 +831,15 @@ Study Loader::Parse(std::string_view text) {
   MapReader top(root, file_, "the study");
   Field version = top.Get("version"), name = top.Get("name"), description = top.Get("description"),
         defaults = top.Get("defaults"), samples = top.Get("samples"), minerals = top.Get("minerals"),
-        grain_moduli = top.Get("grain_moduli"), user_models = top.Get("user_models");
+        grain_moduli = top.Get("grain_moduli"), branch_tests = top.Get("branch_tests"),
+        user_models = top.Get("user_models");
   top.Finish();
   if (version && version.Integer() != 1)
     throw InputError(version.at, "version = " + version.Scalar() + " is not supported (this loader reads version 1)");
   if (!name) throw InputError(top.at(), "missing required key 'name' in the study");
   study_.name = name.Scalar();
   if (description) study_.description = description.Scalar();
+  if (branch_tests) study_.branch_tests = io::detail::ReadBranchTestSettings(branch_tests, file_);
   if (user_models) {  // before defaults and samples, which may name them
     study_.user_models = io::detail::ReadUserModels(user_models, file_, text, *registry_);
     with_user_models_ = *registry_;
@@ -1020,7 +1023,8 @@ void Loader::ReadSample(const YAML::Node& node, size_t index) {
         branch = m.Get("branch"), cycle = m.Get("cycle"), coefficient = m.Get("effective_pressure_coefficient"),
         pore_pressure = m.Get("pore_pressure"), uncertainty = m.Get("uncertainty"), data = m.Get("data"),
         models = m.Get("models"), fit = m.Get("fit"), grain = m.Get("grain_modulus"),
-        fluid = m.Get("fluid_modulus"), vti = m.Get("vti_stiffness"), band = m.Get("bands");
+        fluid = m.Get("fluid_modulus"), vti = m.Get("vti_stiffness"), band = m.Get("bands"),
+        plug = m.Get("plug");
   m.Finish();
 
   StudySample ss;
@@ -1072,6 +1076,12 @@ void Loader::ReadSample(const YAML::Node& node, size_t index) {
     const long long c = cycle.Integer();
     if (c < 1 || c > 1000000) throw InputError(cycle.at, "cycle = " + cycle.Scalar() + " must be >= 1");
     s.cycle = static_cast<int>(c);
+  }
+  if (plug) {  // branch sets: docs/study-file.md
+    s.plug = plug.Scalar();
+    if (s.plug.empty()) throw InputError(plug.at, "'plug' must not be empty");
+    io::detail::CheckPlugIsUnambiguous(study_.samples, s, plug.at);
+    if (const std::string w = io::detail::PlugConsistencyWarning(study_.samples, s); !w.empty()) Warn(plug.at, w);
   }
   if (coefficient) {
     s.effective_pressure_coefficient = coefficient.Number();

@@ -1,5 +1,6 @@
 #include <cmath>
 
+#include "branch_writer.h"
 #include "format.h"
 #include "porofit/core/units.h"
 #include "porofit/report/report.h"
@@ -495,6 +496,7 @@ Json ResultsJson(const StudyRun& run, const std::vector<InputDigest>& inputs, co
                          {"location", m.where.ToString()}});
   j["mineral_overrides"] = overrides;
   j["alpha_notes"] = {detail::CorrelationCaveat()};
+  j["branches"] = detail::BranchesJson(run);
   return j;
 }
 

@@ -17,7 +17,8 @@ std::vector<InputDigest> DigestInputs(const Study& study) {
 
 std::vector<std::string> ReportFileNames() {
   return {"summary.txt", "parameters.csv", "fits.csv",          "residuals.csv",
-          "alpha.csv",   "grain_modulus.csv", "alpha_vti.csv", "results.json"};
+          "alpha.csv",   "grain_modulus.csv", "alpha_vti.csv", "results.json",
+          "branch_tests.csv", "hysteresis.csv"};
 }
 
 void WriteReportFolder(const StudyRun& run, const std::filesystem::path& folder,
@@ -41,6 +42,8 @@ void WriteReportFolder(const StudyRun& run, const std::filesystem::path& folder,
         emit("grain_modulus.csv", [&](std::ostream& o) { WriteGrainModulusCsv(run, o); });
         emit("alpha_vti.csv", [&](std::ostream& o) { WriteVtiAlphaCsv(run, o); });
         emit("results.json", [&](std::ostream& o) { WriteResultsJson(run, inputs, o, options); });
+        emit("branch_tests.csv", [&](std::ostream& o) { WriteBranchTestsCsv(run, o); });
+        emit("hysteresis.csv", [&](std::ostream& o) { WriteHysteresisCsv(run, o); });
       },
       folder_options);
 }

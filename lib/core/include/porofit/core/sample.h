@@ -45,6 +45,12 @@ struct DataPoint {
 /// A core plug tested along one branch of one cycle.
 struct Sample {
   std::string id;
+  /// The physical plug (study key `plug`); "" = not given. Samples with the
+  /// same plug and measurement kind but different (branch, cycle) form a
+  /// branch set, tested for hysteresis (porofit/run/branches.h); each stays
+  /// its own fit. The loader rejects two samples of one plug with the same
+  /// kind, branch and cycle.
+  std::string plug;
   std::string lithology;          ///< free text, e.g. "clean sandstone"
   double porosity = 0;            ///< fraction, [0, 1)
   double bulk_density = 0;        ///< kg/m^3

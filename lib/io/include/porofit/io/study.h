@@ -85,6 +85,14 @@ struct StudySample {
   BandSettings bands;
 };
 
+/// Study-level settings of the branch (hysteresis) tests, key `branch_tests`
+/// (docs/study-file.md). Used only for plugs with two or more samples.
+struct BranchTestSettings {
+  double level = 0.95;   ///< level of the F tests joint vs separate, in (0, 1)
+  int grid_points = 11;  ///< hysteresis grid: points across the pressure overlap of two branches, in [2, 1000]
+  SourceLocation where;  ///< of the `branch_tests` mapping (when given)
+};
+
 /// An input file read while loading, for provenance (hashes are computed by
 /// the report layer).
 struct InputFile {
@@ -98,6 +106,7 @@ struct Study {
   std::string path;               ///< the study file
   std::vector<InputFile> inputs;  ///< study file first, then data files in order of use
   std::vector<StudySample> samples;
+  BranchTestSettings branch_tests;  ///< settings of the branch tests (defaults when not given)
   /// Minerals the study's `minerals:` section adds to or overrides in
   /// poro::MineralTable::Builtin(), in name order.
   std::vector<poro::Mineral> mineral_overrides;

@@ -74,6 +74,13 @@ void WriteGrainModulusCsv(const StudyRun& run, std::ostream& out);
 /// alpha_vti.csv: one row per VTI stiffness row of a sample with K_s.
 void WriteVtiAlphaCsv(const StudyRun& run, std::ostream& out);
 
+/// branch_tests.csv: one row per (branch set, model, scope): joint (pooled,
+/// for the test only) against separate fits (porofit/run/branches.h).
+void WriteBranchTestsCsv(const StudyRun& run, std::ostream& out);
+/// hysteresis.csv: one row per (branch set, model, compared pair, grid
+/// pressure), or one row with the reason for a pair not compared.
+void WriteHysteresisCsv(const StudyRun& run, std::ostream& out);
+
 /// results.json as a value (ordered keys). NaN and infinities become null
 /// when dumped.
 nlohmann::ordered_json ResultsJson(const StudyRun& run, const std::vector<InputDigest>& inputs,

@@ -19,6 +19,7 @@
 #include "porofit/fit/fitter.h"
 #include "porofit/io/study.h"
 #include "porofit/models/registry.h"
+#include "porofit/run/branches.h"
 
 namespace porofit {
 
@@ -95,6 +96,9 @@ struct SampleRun {
 struct StudyRun {
   Study study;
   std::vector<SampleRun> samples;  ///< parallel to study.samples
+  /// Joint vs separate tests and hysteresis of every branch set (plugs with
+  /// two or more samples of one kind; porofit/run/branches.h).
+  std::vector<BranchSetRun> branches;
   RunMetadata metadata;
   /// The catalogue the run used: built-ins (or RunOptions::registry) plus the
   /// study's user models. Set by RunStudy(); the report layer and every later
