@@ -82,8 +82,8 @@ class Scratch {
 
 const std::vector<std::string> kReportFiles = {"summary.txt", "parameters.csv",    "fits.csv",
                                                "residuals.csv", "alpha.csv",        "grain_modulus.csv",
-                                               "alpha_vti.csv", "results.json",
-                                               "branch_tests.csv", "hysteresis.csv"};
+                                               "alpha_vti.csv", "branch_tests.csv", "hysteresis.csv", "joint_fits.csv",
+                                               "joint_tests.csv", "joint_alpha.csv", "results.json"};
 
 // ---------------------------------------------------------------- command line
 
@@ -191,7 +191,7 @@ TEST(SampleStudy, FitWritesEveryFileAndTheSummaryShowsEverySample) {
   EXPECT_NE(r.out.find("invented"), std::string::npos);
   EXPECT_EQ(Slurp(out / "summary.txt") +
                 "\nwrote summary.txt, parameters.csv, fits.csv, residuals.csv, alpha.csv, grain_modulus.csv, "
-                "alpha_vti.csv, results.json, branch_tests.csv, hysteresis.csv to " +
+                "alpha_vti.csv, branch_tests.csv, hysteresis.csv, joint_fits.csv, joint_tests.csv, joint_alpha.csv, results.json to " +
                 out.string() + "\n",
             r.out);
   // Only the report files: no staging folder left next to it.

@@ -15,6 +15,7 @@
 #include "porofit/io/csv.h"
 #include "branch_settings.h"
 #include "scalar.h"
+#include "study_joint.h"
 #include "study_user_models.h"
 #include "yaml_map.h"
 
@@ -832,7 +833,7 @@ Study Loader::Parse(std::string_view text) {
   Field version = top.Get("version"), name = top.Get("name"), description = top.Get("description"),
         defaults = top.Get("defaults"), samples = top.Get("samples"), minerals = top.Get("minerals"),
         grain_moduli = top.Get("grain_moduli"), branch_tests = top.Get("branch_tests"),
-        user_models = top.Get("user_models");
+        joint_fits = top.Get("joint_fits"), user_models = top.Get("user_models");
   top.Finish();
   if (version && version.Integer() != 1)
     throw InputError(version.at, "version = " + version.Scalar() + " is not supported (this loader reads version 1)");
@@ -887,6 +888,10 @@ Study Loader::Parse(std::string_view text) {
   if (samples.node.size() == 0) throw InputError(samples.at, "'samples' is empty: the study has no samples");
   const YAML::Node& list = samples.node;
   for (size_t i = 0; i < list.size(); ++i) ReadSample(list[i], i);
+  if (joint_fits)
+    study_.joint_fits = io::detail::ReadJointFits(
+        joint_fits, file_, study_.samples, *registry_,
+        [&](const YAML::Node& n, const std::string& p) { return ReadModelChoice(n, file_, p, *registry_); });
   if (any_grain_) {
     for (size_t i = 0; i < study_.samples.size(); ++i)
       if (!wrote_grain_[i])

@@ -497,6 +497,7 @@ Json ResultsJson(const StudyRun& run, const std::vector<InputDigest>& inputs, co
   j["mineral_overrides"] = overrides;
   j["alpha_notes"] = {detail::CorrelationCaveat()};
   j["branches"] = detail::BranchesJson(run);
+  j["joint_fits"] = JointFitsJson(run);
   return j;
 }
 

@@ -17,8 +17,8 @@ std::vector<InputDigest> DigestInputs(const Study& study) {
 
 std::vector<std::string> ReportFileNames() {
   return {"summary.txt", "parameters.csv", "fits.csv",          "residuals.csv",
-          "alpha.csv",   "grain_modulus.csv", "alpha_vti.csv", "results.json",
-          "branch_tests.csv", "hysteresis.csv"};
+          "alpha.csv",   "grain_modulus.csv", "alpha_vti.csv", "branch_tests.csv", "hysteresis.csv",
+          "joint_fits.csv", "joint_tests.csv", "joint_alpha.csv", "results.json"};
 }
 
 void WriteReportFolder(const StudyRun& run, const std::filesystem::path& folder,
@@ -41,9 +41,12 @@ void WriteReportFolder(const StudyRun& run, const std::filesystem::path& folder,
         emit("alpha.csv", [&](std::ostream& o) { WriteAlphaCsv(run, o); });
         emit("grain_modulus.csv", [&](std::ostream& o) { WriteGrainModulusCsv(run, o); });
         emit("alpha_vti.csv", [&](std::ostream& o) { WriteVtiAlphaCsv(run, o); });
-        emit("results.json", [&](std::ostream& o) { WriteResultsJson(run, inputs, o, options); });
         emit("branch_tests.csv", [&](std::ostream& o) { WriteBranchTestsCsv(run, o); });
         emit("hysteresis.csv", [&](std::ostream& o) { WriteHysteresisCsv(run, o); });
+        emit("joint_fits.csv", [&](std::ostream& o) { WriteJointFitsCsv(run, o); });
+        emit("joint_tests.csv", [&](std::ostream& o) { WriteJointTestsCsv(run, o); });
+        emit("joint_alpha.csv", [&](std::ostream& o) { WriteJointAlphaCsv(run, o); });
+        emit("results.json", [&](std::ostream& o) { WriteResultsJson(run, inputs, o, options); });
       },
       folder_options);
 }

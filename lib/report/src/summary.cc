@@ -193,6 +193,7 @@ void WriteSummary(const StudyRun& run, std::ostream& out) {
     SampleBlock(run.study.samples[i], run.samples[i], out);
   }
   detail::WriteBranchSummary(run, out);
+  WriteJointSummary(run, out);
   out << "\nRMSE from raw residuals. AICc: lower is better, compare only fits of the same sample; a gap under 2 "
          "does not separate two models (Burnham & Anderson 2002). Check every flag and note before using a fit; "
          "flags are explained in docs/outputs.md.\n";

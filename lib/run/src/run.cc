@@ -320,6 +320,7 @@ StudyRun RunStudy(const Study& study, const RunOptions& options) {
     for (std::thread& t : pool) t.join();
   }
   run.branches = RunBranches(study, run.samples, registry);  // after every per-sample fit
+  for (const JointFitChoice& j : study.joint_fits) run.joint_fits.push_back(RunJoint(study, j, registry));
   run.metadata.wall_seconds =
       std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
   return run;

@@ -100,6 +100,23 @@ struct InputFile {
   std::string role;  ///< "study" or "data"
 };
 
+/// One `joint_fits:` entry: a model fitted jointly to several samples with
+/// some parameters shared (porofit::FitJoint). SI.
+struct JointFitChoice {
+  std::string name;
+  std::string model_id;
+  /// Member samples, indices into Study::samples: the explicit `samples:` in
+  /// their written order, then the `where:` matches in study order.
+  std::vector<size_t> samples;
+  std::vector<std::string> shared;                   ///< parameter names, as written
+  std::map<std::string, ParameterSetting> settings;  ///< applied to every member
+  /// `allow_mixed_branches: true`; mixed_branches says whether the members
+  /// really mix loading and unloading (outputs then say so).
+  bool allow_mixed_branches = false;
+  bool mixed_branches = false;
+  SourceLocation where;
+};
+
 struct Study {
   std::string name;
   std::string description;
@@ -107,6 +124,8 @@ struct Study {
   std::vector<InputFile> inputs;  ///< study file first, then data files in order of use
   std::vector<StudySample> samples;
   BranchTestSettings branch_tests;  ///< settings of the branch tests (defaults when not given)
+  /// Joint fits across samples (`joint_fits:`), in file order; run after the per-sample fits.
+  std::vector<JointFitChoice> joint_fits;
   /// Minerals the study's `minerals:` section adds to or overrides in
   /// poro::MineralTable::Builtin(), in name order.
   std::vector<poro::Mineral> mineral_overrides;

@@ -80,6 +80,17 @@ void WriteBranchTestsCsv(const StudyRun& run, std::ostream& out);
 /// hysteresis.csv: one row per (branch set, model, compared pair, grid
 /// pressure), or one row with the reason for a pair not compared.
 void WriteHysteresisCsv(const StudyRun& run, std::ostream& out);
+/// joint_fits.csv: one row per (joint fit, member sample, model parameter),
+/// shared = yes/no (lib/report/src/joint_writer.cc).
+void WriteJointFitsCsv(const StudyRun& run, std::ostream& out);
+/// joint_tests.csv: one row per joint fit: F test and AICc against the separate fits.
+void WriteJointTestsCsv(const StudyRun& run, std::ostream& out);
+/// joint_alpha.csv: alpha bands of joint-fit members with K_s.
+void WriteJointAlphaCsv(const StudyRun& run, std::ostream& out);
+/// The "joint_fits" array of results.json.
+nlohmann::ordered_json JointFitsJson(const StudyRun& run);
+/// The joint-fit lines of the terminal summary (nothing without joint fits).
+void WriteJointSummary(const StudyRun& run, std::ostream& out);
 
 /// results.json as a value (ordered keys). NaN and infinities become null
 /// when dumped.

@@ -15,8 +15,10 @@
 #include <vector>
 
 #include "porofit/bands/bands.h"
+#include "porofit/compare/joint_vs_separate.h"
 #include "porofit/fit/fit_result.h"
 #include "porofit/fit/fitter.h"
+#include "porofit/fit/joint.h"
 #include "porofit/io/study.h"
 #include "porofit/models/registry.h"
 #include "porofit/run/branches.h"
@@ -93,12 +95,31 @@ struct SampleRun {
   std::vector<VtiStiffnessFit> vti_fits;
 };
 
+/// One entry of Study::joint_fits, run by RunJoint() (lib/run/src/joint_run.cc).
+struct JointRun {
+  /// The joint fit; its data sets are the members in JointFitChoice::samples
+  /// order (labels = sample ids). Options: the first member's FitOptions, with
+  /// plain least squares (a robust loss there is dropped and noted).
+  JointFitResult fit;
+  /// Joint against the separate fits of the same model to each member.
+  compare::JointVsSeparate comparison;
+  /// Alpha bands per member (parallel to JointFitChoice::samples) from the
+  /// member's view of the joint fit (delta method and Monte Carlo carry the
+  /// shared parameters' variance; bootstrap is not available for joint fits);
+  /// computed = false with a message for a member without grain modulus.
+  std::vector<bands::BandResult> bands;
+  /// Statements every report of this joint fit must carry (correlation through
+  /// the shared parameters, mixed branches, dropped loss or bootstrap).
+  std::vector<std::string> notes;
+};
+
 struct StudyRun {
   Study study;
   std::vector<SampleRun> samples;  ///< parallel to study.samples
   /// Joint vs separate tests and hysteresis of every branch set (plugs with
   /// two or more samples of one kind; porofit/run/branches.h).
   std::vector<BranchSetRun> branches;
+  std::vector<JointRun> joint_fits;  ///< parallel to study.joint_fits
   RunMetadata metadata;
   /// The catalogue the run used: built-ins (or RunOptions::registry) plus the
   /// study's user models. Set by RunStudy(); the report layer and every later
@@ -137,6 +158,11 @@ bands::BandResult RunBands(const StudySample& sample, const ModelChoice& choice,
 /// FitResult. Needs a grain modulus (otherwise returns nothing).
 std::vector<VtiAlphaPoint> RunVti(const StudySample& sample, const ModelRegistry& registry,
                                   std::vector<VtiStiffnessFit>& fits);
+
+/// Runs one joint fit of `study` (after its per-sample fits; independent of
+/// them), its comparison with the separate fits and its members' alpha bands.
+/// Never throws for a failing fit.
+JointRun RunJoint(const Study& study, const JointFitChoice& choice, const ModelRegistry& registry);
 
 /// Runs the whole study. Requires options.Validate().empty() (checked: a bad
 /// option is a programmer error and aborts).
