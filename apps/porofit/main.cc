@@ -2,7 +2,7 @@
 //
 //   porofit fit STUDY.yaml --out DIR [--overwrite] [--threads N] [--quiet]
 //   porofit check STUDY.yaml
-//   porofit models
+//   porofit models [STUDY.yaml]
 //
 // Exit status: 0 success; 2 bad input (study file, data, command line, output
 // location); 3 internal error. A fit that does not converge is a result, not
@@ -41,7 +41,7 @@ const char* kUsage =
     "commands:\n"
     "  fit STUDY.yaml --out DIR   fit every model to every sample and write the report folder\n"
     "  check STUDY.yaml           validate a study file without fitting\n"
-    "  models                     print the model catalogue\n"
+    "  models [STUDY.yaml]        print the model catalogue (with a study: and its user models)\n"
     "\n"
     "options:\n"
     "  -h [ --help ]              show this help (or a command's: porofit fit --help)\n"
@@ -190,6 +190,7 @@ int CmdCheck(const std::vector<std::string>& args) {
     for (const porofit::ModelChoice& m : s.models) std::cout << " " << m.model_id;
     std::cout << "\n";
   }
+  for (const porofit::ModelSpec& m : study.user_models) std::cout << "  user model " << m.id << ": " << m.formula << "\n";
   for (const std::string& w : study.warnings) std::cout << w << "\n";
   const std::string invented = porofit::InventedNotice(study);
   if (!invented.empty()) std::cout << invented << "\n";
@@ -197,14 +198,26 @@ int CmdCheck(const std::vector<std::string>& args) {
 }
 
 int CmdModels(const std::vector<std::string>& args) {
-  po::options_description opts("porofit models");
+  po::options_description opts("porofit models [STUDY.yaml]");
+  std::string study_path;
   opts.add_options()("help,h", "show this help");
-  const po::variables_map vm = Parse(args, opts, {});
+  po::options_description hidden;
+  hidden.add_options()("study", po::value<std::string>(&study_path), "study file");
+  po::options_description all;
+  all.add(opts).add(hidden);
+  po::positional_options_description pos;
+  pos.add("study", 1);
+  const po::variables_map vm = Parse(args, all, pos);
   if (vm.count("help")) {
-    std::cout << opts << "\nPrints every model: formula, parameters with units and bounds, reference.\n";
+    std::cout << opts << "\nPrints every model: formula, parameters with units and bounds, reference.\n"
+                         "With a study file, its user models are listed after the built-in ones.\n";
     return kExitOk;
   }
-  std::cout << porofit::DescribeCatalogue(porofit::ModelRegistry::Builtin());
+  if (study_path.empty()) {
+    std::cout << porofit::DescribeCatalogue(porofit::ModelRegistry::Builtin());
+  } else {
+    std::cout << porofit::DescribeCatalogue(porofit::StudyRegistry(porofit::LoadStudy(study_path)));
+  }
   return kExitOk;
 }
 

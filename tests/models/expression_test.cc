@@ -6,6 +6,7 @@
 
 #include <cmath>
 #include <limits>
+#include <numbers>
 #include <string>
 #include <thread>
 #include <vector>
@@ -205,6 +206,159 @@ TEST(FormulaModel, EvaluatesConcurrentlyWithoutInterference) {
     });
   for (auto& t : threads) t.join();
   for (int b : bad) EXPECT_EQ(b, 0);
+}
+
+TEST(FormulaModel, TrigonometricFunctionsPiAndFortranSpellingHaveExactDerivatives) {
+  const std::vector<FormulaParameter> params = {
+      {"a", "1", 1, 0, 10, 2.0, ""}, {"b", "1", 1, 0, 10, 0.7, ""}, {"c", "1", 1, 0, 10, 1.3, ""}};
+  const ModelSpec m = MakeFormulaModel(
+      "trig", "a*sin(2*pi*P/c) + cos[b*P] - arctan[b/(P - 4*c)]/pi + atan(a*P) + tan(b/P) + ln(c + P + 1)**b",
+      params);
+  const std::vector<std::vector<double>> thetas = {{2.0, 0.7, 1.3}, {5.0, 1.9, 0.4}};
+  for (const auto& th : thetas) {
+    for (double p : {0.5, 2.0, 9.0}) {
+      std::vector<double> g(3);
+      const double v = m.value_and_gradient(th.data(), p, g.data());
+      EXPECT_EQ(v, m.value(th.data(), p));
+      for (size_t j = 0; j < 3; ++j) {
+        const double h = 1e-6 * std::max(1.0, std::abs(th[j]));
+        auto tp = th, tm = th;
+        tp[j] += h;
+        tm[j] -= h;
+        const double fd = (m.value(tp.data(), p) - m.value(tm.data(), p)) / (2 * h);
+        EXPECT_NEAR(g[j], fd, 1e-6 * std::max(1.0, std::abs(fd))) << "j = " << j << " P = " << p;
+      }
+      const double h = 1e-6 * p;
+      const double fd = (m.value(th.data(), p + h) - m.value(th.data(), p - h)) / (2 * h);
+      EXPECT_NEAR(m.slope(th.data(), p), fd, 1e-6 * std::max(1.0, std::abs(fd)));
+    }
+  }
+}
+
+TEST(FormulaModel, NewSpellingsEvaluateAsMathDefines) {
+  EXPECT_EQ(Eval("2**3**2"), 512.0);  // "**" is "^", right-associative
+  EXPECT_EQ(Eval("-P**2"), -9.0);
+  EXPECT_EQ(Eval("[1 + 2]*3"), 9.0);
+  EXPECT_EQ(Eval("exp[0] + 2*P"), 7.0);
+  EXPECT_DOUBLE_EQ(Eval("4*atan(1)"), std::numbers::pi);
+  EXPECT_DOUBLE_EQ(Eval("arctan(1)*4 - pi"), 0.0);
+  EXPECT_DOUBLE_EQ(Eval("sin(pi/2) + cos(0) + tan(0)"), 2.0);
+  EXPECT_DOUBLE_EQ(Eval("ln(exp(2))"), 2.0);
+}
+
+TEST(FormulaModel, OptionsSetSymbolsUnitsAndTitle) {
+  FormulaOptions o;
+  o.x_symbol = "x";
+  o.y_symbol = "y";
+  o.x_unit = o.y_unit = "1";
+  o.x_si_factor = o.y_si_factor = 1.0;
+  o.name = "growth curve";
+  o.reference = "NIST StRD Misra1a model statement";
+  const ModelSpec m = MakeFormulaModel("m1a", "y = b1*(1-exp[-b2*x])",
+                                       {{"b1", "1", 1, 0, 1e4, 500, ""}, {"b2", "1", 1, 0, 1, 1e-4, ""}}, o);
+  EXPECT_EQ(m.x_symbol, "x");
+  EXPECT_EQ(m.y_symbol, "y");
+  EXPECT_EQ(m.x_unit, "1");
+  EXPECT_EQ(m.y_unit, "1");
+  EXPECT_EQ(m.x_si_factor, 1.0);
+  EXPECT_EQ(m.y_si_factor, 1.0);
+  EXPECT_EQ(m.name, "growth curve");
+  EXPECT_EQ(m.reference, "NIST StRD Misra1a model statement");
+  EXPECT_EQ(m.formula, "y = b1*(1-exp[-b2*x])");
+  const double th[2] = {500, 1e-4};
+  EXPECT_DOUBLE_EQ(m.value(th, 100.0), 500 * (1 - std::exp(-1e-2)));
+  // With the default options "P" is the x symbol and "x" is an unknown name.
+  try {
+    MakeFormulaModel("m1a", "b1*(1-exp(-b2*x))", {{"b1", "1", 1, 0, 1e4, 500, ""}, {"b2", "1", 1, 0, 1, 1e-4, ""}});
+    ADD_FAILURE() << "x accepted without x_symbol = x";
+  } catch (const FormulaError& e) {
+    EXPECT_EQ(e.column(), 15);
+    EXPECT_EQ(e.detail(), "unknown name 'x' (did you mean 'P'?)");
+  }
+}
+
+TEST(FormulaModel, DataColumnsTakeTheRowValueAtTheRowIndex) {
+  FormulaOptions o;
+  o.columns = {{"x1", {1.0, 2.0, 3.0}}, {"x2", {10.0, 20.0, 30.0}}};
+  const ModelSpec m = MakeFormulaModel("two", "a*x1 + b*x2 + P", {{"a", "1", 1, -9, 9, 1, ""}, {"b", "1", 1, -9, 9, 1, ""}}, o);
+  const double th[2] = {2.0, 0.5};
+  EXPECT_EQ(m.value(th, 0.0), 2.0 + 5.0 + 0.0);
+  EXPECT_EQ(m.value(th, 2.0), 6.0 + 15.0 + 2.0);
+  double g[2];
+  EXPECT_EQ(m.value_and_gradient(th, 1.0, g), 4.0 + 10.0 + 1.0);
+  EXPECT_EQ(g[0], 2.0);
+  EXPECT_EQ(g[1], 20.0);
+  EXPECT_TRUE(std::isnan(m.value(th, 3.0)));   // no such row
+  EXPECT_TRUE(std::isnan(m.value(th, 0.5)));   // not a row index
+  EXPECT_TRUE(std::isnan(m.value(th, -1.0)));
+  o.columns = {{"a", {1.0}}};
+  EXPECT_THROW(MakeFormulaModel("two", "a*P", {{"a", "1", 1, -9, 9, 1, ""}}, o), FormulaError);
+  o.columns = {{"exp", {1.0}}};
+  EXPECT_THROW(MakeFormulaModel("two", "a*P", {{"a", "1", 1, -9, 9, 1, ""}}, o), FormulaError);
+}
+
+TEST(FormulaModel, LogTransformIsCarriedAndNeedsANonNegativeLowerBound) {
+  auto p = ExpModulusParams();
+  p[2].transform = ParameterTransform::kLog;
+  const ModelSpec m = MakeFormulaModel("my-exp", "K_inf - (K_inf - K_0)*exp(-P/P_close)", p);
+  EXPECT_EQ(m.parameters[2].transform, ParameterTransform::kLog);
+  EXPECT_EQ(m.parameters[0].transform, ParameterTransform::kIdentity);
+  p[2].lower = -1;
+  try {
+    MakeFormulaModel("my-exp", "K_inf - (K_inf - K_0)*exp(-P/P_close)", p);
+    ADD_FAILURE() << "log transform with lower < 0 accepted";
+  } catch (const FormulaError& e) {
+    EXPECT_EQ(e.column(), 0);
+    EXPECT_EQ(e.parameter(), "P_close");
+    EXPECT_NE(e.detail().find("transform log needs lower >= 0"), std::string::npos) << e.detail();
+  }
+}
+
+TEST(FormulaModel, BracketAndNewFunctionErrorsNameTheColumn) {
+  const BadCase cases[] = {
+      {"K_inf + K_0 * [P_close + P", 27, "expected ']'"},
+      {"K_inf + K_0 * exp[P_close)", 26, "expected ']'"},
+      {"K_inf + K_0 * sinh(P_close)", 15, "unknown function 'sinh' (did you mean 'sin'?)"},
+      {"K_inf + K_0 * P_close ** ", 26, "unexpected end of formula"},
+      {"K_inf + K_0 + atan(P_close, P)", 27, "atan takes 1 argument"},
+      {"K_inf + K_0 + pi(P_close)", 15, "'pi' is not a function"},
+  };
+  for (const auto& c : cases) {
+    try {
+      MakeFormulaModel("bad", c.formula, ExpModulusParams());
+      ADD_FAILURE() << "no error for " << c.formula;
+    } catch (const FormulaError& e) {
+      EXPECT_EQ(e.column(), c.column) << c.formula << ": " << e.message();
+      EXPECT_NE(e.detail().find(c.fragment), std::string::npos) << c.formula << ": " << e.message();
+      EXPECT_EQ(e.message(), "column " + std::to_string(c.column) + ": " + e.detail());
+    }
+  }
+  auto p = ExpModulusParams();
+  p[0].name = "pi";
+  EXPECT_THROW(MakeFormulaModel("x", "pi + K_0 + P_close", p), FormulaError);
+  p[0].name = "sin";
+  EXPECT_THROW(MakeFormulaModel("x", "sin + K_0 + P_close", p), FormulaError);
+}
+
+TEST(FormulaModel, DeeplyNestedFormulasEvaluateExactly) {
+  // 200 nested sums need a deeper evaluation stack than the small-formula
+  // buffer: a + (a + (a + ... + P*b)) = 200 a + P b.
+  std::string f = "P*b";
+  for (int k = 0; k < 200; ++k) f = "a + (" + f + ")";
+  const ModelSpec m = MakeFormulaModel("deep", f, {{"a", "1", 1, -9, 9, 1, ""}, {"b", "1", 1, -9, 9, 1, ""}});
+  const double th[2] = {0.5, 2.0};
+  double g[2];
+  EXPECT_DOUBLE_EQ(m.value_and_gradient(th, 3.0, g), 200 * 0.5 + 3.0 * 2.0);
+  EXPECT_DOUBLE_EQ(g[0], 200.0);
+  EXPECT_DOUBLE_EQ(g[1], 3.0);
+  EXPECT_DOUBLE_EQ(m.slope(th, 3.0), 2.0);
+}
+
+TEST(FormulaModel, AFormulaOverSeveralLinesIsShownOnOne) {
+  const ModelSpec m = MakeFormulaModel("my-exp", "K_inf - (K_inf - K_0)\n    * exp(-P/P_close)\n", ExpModulusParams());
+  EXPECT_EQ(m.formula, "K = K_inf - (K_inf - K_0) * exp(-P/P_close)");
+  const double th[3] = {20, 8, 10};
+  EXPECT_DOUBLE_EQ(m.value(th, 10.0), 20 - 12 * std::exp(-1.0));
 }
 
 }  // namespace

@@ -17,6 +17,7 @@
 #include "scalar.h"
 #include "study_joint.h"
 #include "study_comparison.h"
+#include "study_user_models.h"
 #include "yaml_map.h"
 
 namespace porofit {
@@ -790,7 +791,7 @@ void ReadBandSettings(const Field& f, const std::string& file, const std::string
 
 class Loader {
  public:
-  Loader(std::string path, const ModelRegistry& registry) : file_(std::move(path)), registry_(registry) {}
+  Loader(std::string path, const ModelRegistry& registry) : file_(std::move(path)), registry_(&registry) {}
 
   Study Parse(std::string_view text);
 
@@ -803,7 +804,8 @@ class Loader {
   }
 
   std::string file_;
-  const ModelRegistry& registry_;
+  const ModelRegistry* registry_;  // the given catalogue, or it plus the study's user models
+  ModelRegistry with_user_models_;
   Study study_;
   FitOptionsRead defaults_fit_;
   bool has_default_fit_ = false;
@@ -832,7 +834,7 @@ Study Loader::Parse(std::string_view text) {
   Field version = top.Get("version"), name = top.Get("name"), description = top.Get("description"),
         defaults = top.Get("defaults"), samples = top.Get("samples"), minerals = top.Get("minerals"),
         grain_moduli = top.Get("grain_moduli"), branch_tests = top.Get("branch_tests"),
-        joint_fits = top.Get("joint_fits");
+        joint_fits = top.Get("joint_fits"), user_models = top.Get("user_models");
   Field comparison = top.Get("comparison");
   top.Finish();
   if (version && version.Integer() != 1)
@@ -841,6 +843,12 @@ Study Loader::Parse(std::string_view text) {
   study_.name = name.Scalar();
   if (description) study_.description = description.Scalar();
   if (branch_tests) study_.branch_tests = io::detail::ReadBranchTestSettings(branch_tests, file_);
+  if (user_models) {  // before defaults and samples, which may name them
+    study_.user_models = io::detail::ReadUserModels(user_models, file_, text, *registry_);
+    with_user_models_ = *registry_;
+    for (const ModelSpec& m : study_.user_models) with_user_models_.Add(m);
+    registry_ = &with_user_models_;
+  }
 
   if (minerals) {
     poro::MineralTable overrides;
@@ -874,7 +882,7 @@ Study Loader::Parse(std::string_view text) {
       ReadFitOptions(fit, file_, "the study defaults", defaults_fit_);
       has_default_fit_ = true;
     }
-    if (models) default_models_ = ReadModels(models, file_, registry_);
+    if (models) default_models_ = ReadModels(models, file_, *registry_);
   }
 
   if (comparison) io::detail::ReadComparison(comparison, file_, study_.comparison);
@@ -885,8 +893,8 @@ Study Loader::Parse(std::string_view text) {
   for (size_t i = 0; i < list.size(); ++i) ReadSample(list[i], i);
   if (joint_fits)
     study_.joint_fits = io::detail::ReadJointFits(
-        joint_fits, file_, study_.samples, registry_,
-        [&](const YAML::Node& n, const std::string& p) { return ReadModelChoice(n, file_, p, registry_); });
+        joint_fits, file_, study_.samples, *registry_,
+        [&](const YAML::Node& n, const std::string& p) { return ReadModelChoice(n, file_, p, *registry_); });
   if (any_grain_) {
     for (size_t i = 0; i < study_.samples.size(); ++i)
       if (!wrote_grain_[i])
@@ -1244,7 +1252,7 @@ void Loader::ReadSample(const YAML::Node& node, size_t index) {
   s.sigma_absolute = has_sigma && *calibrated;
 
   // Models and fit options.
-  if (models) ss.models = ReadModels(models, file_, registry_);
+  if (models) ss.models = ReadModels(models, file_, *registry_);
   else ss.models = default_models_;
   if (ss.models.empty())
     throw InputError(m.at(), what + " has no models: list them under 'models' here or in 'defaults'");
@@ -1302,7 +1310,7 @@ void Loader::ReadSample(const YAML::Node& node, size_t index) {
   needs_grain(vti);
   needs_grain(band);
   if (fluid) ss.fluid = ReadFluid(fluid, file_, what);
-  if (vti) ss.vti = ReadVti(vti, file_, what, registry_, ss.vti_fit_model, ss.vti_fit_where);
+  if (vti) ss.vti = ReadVti(vti, file_, what, *registry_, ss.vti_fit_model, ss.vti_fit_where);
   ss.bands = default_bands_;
   if (band) ReadBandSettings(band, file_, what, ss.bands);
   study_.samples.push_back(std::move(ss));

@@ -5,6 +5,7 @@
 #include "format.h"
 #include "porofit/core/units.h"
 #include "porofit/report/report.h"
+#include "user_models_report.h"
 
 namespace porofit {
 namespace {
@@ -372,7 +373,9 @@ Json AlphaJson(const bands::BandResult& b) {
 }  // namespace
 
 Json ResultsJson(const StudyRun& run, const std::vector<InputDigest>& inputs, const ReportOptions& options) {
-  const ModelRegistry& registry = options.registry ? *options.registry : ModelRegistry::Builtin();
+  const ModelRegistry& registry = options.registry ? *options.registry
+                                  : run.registry   ? *run.registry
+                                                   : ModelRegistry::Builtin();
   Json j;
   j["caution"] = CautionText();
   if (IsInventedStudy(run.study)) j["invented_data"] = InventedNotice(run.study);
@@ -395,6 +398,7 @@ Json ResultsJson(const StudyRun& run, const std::vector<InputDigest>& inputs, co
   j["provenance"] = prov;
 
   j["study"] = {{"name", run.study.name}, {"description", run.study.description}, {"path", run.study.path}};
+  if (!run.study.user_models.empty()) j["user_models"] = detail::UserModelsJson(run.study);
 
   Json samples = Json::array();
   for (size_t i = 0; i < run.study.samples.size(); ++i) {

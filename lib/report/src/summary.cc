@@ -7,6 +7,7 @@
 #include "format.h"
 #include "porofit/core/units.h"
 #include "porofit/report/report.h"
+#include "user_models_report.h"
 
 namespace porofit {
 namespace {
@@ -188,6 +189,7 @@ void WriteSummary(const StudyRun& run, std::ostream& out) {
   const std::string invented = InventedNotice(run.study);
   if (!invented.empty()) out << invented << "\n";
   for (const std::string& w : run.study.warnings) out << w << "\n";
+  detail::WriteUserModelsSummary(run.study, out);
   for (size_t i = 0; i < run.study.samples.size() && i < run.samples.size(); ++i) {
     out << "\n";
     SampleBlock(run.study.samples[i], run.samples[i], out);

@@ -272,10 +272,12 @@ std::vector<VtiAlphaPoint> RunVti(const StudySample& s, const ModelRegistry& reg
 StudyRun RunStudy(const Study& study, const RunOptions& options) {
   const std::string bad = options.Validate();
   POROFIT_CHECK(bad.empty(), "RunOptions: " + bad);
-  const ModelRegistry& registry = options.registry ? *options.registry : ModelRegistry::Builtin();
+  auto catalogue = std::make_shared<const ModelRegistry>(StudyRegistry(study, options.registry));
+  const ModelRegistry& registry = *catalogue;
 
   StudyRun run;
   run.study = study;
+  run.registry = catalogue;
   run.metadata.started_utc = options.timestamp_utc.empty() ? UtcTimestampNow() : options.timestamp_utc;
   run.metadata.tool_version = kVersion;
   run.metadata.build_type = POROFIT_BUILD_TYPE;

@@ -132,6 +132,10 @@ struct Study {
   std::vector<poro::Mineral> mineral_overrides;
   /// Model comparison settings (top-level `comparison:`; defaults when absent).
   compare::ComparisonOptions comparison;
+  /// Models of the study's own (`user_models:`, formula models), in file
+  /// order; samples name them like built-ins. Their ids differ from the
+  /// catalogue's. See StudyRegistry() in porofit/run/run.h.
+  std::vector<ModelSpec> user_models;
   /// Non-fatal findings of the loader, each "file:line:col: warning: message"
   /// (e.g. Vp/Vs <= sqrt(2), a Poisson ratio <= 0), in file order.
   std::vector<std::string> warnings;

@@ -47,7 +47,8 @@ struct InputDigest {
 std::vector<InputDigest> DigestInputs(const Study& study);
 
 struct ReportOptions {
-  /// Catalogue for model titles, formulas and references. nullptr: Builtin().
+  /// Catalogue for model titles, formulas and references. nullptr: the run's
+  /// own (StudyRun::registry: built-ins plus the study's user models), else Builtin().
   const ModelRegistry* registry = nullptr;
 };
 

@@ -10,6 +10,7 @@
 // results are placed by index, so the output is identical for any thread count.
 // Failure: a fit that fails is a FitResult status (with message), never an
 // exception; RunStudy() itself throws only std::bad_alloc-like system errors.
+#include <memory>
 #include <string>
 #include <vector>
 
@@ -36,6 +37,7 @@ struct RunOptions {
   /// can be compared byte for byte.
   std::string timestamp_utc;
   /// Catalogue the model ids are looked up in. nullptr: ModelRegistry::Builtin().
+  /// Either way the study's user models are added (StudyRegistry()).
   const ModelRegistry* registry = nullptr;
 
   /// Empty if valid, otherwise "field = value violates rule".
@@ -124,7 +126,16 @@ struct StudyRun {
   RunMetadata metadata;
   /// Model comparison across samples, grouped by Study::comparison.group_by.
   compare::ComparisonSummary comparison_summary;
+  /// The catalogue the run used: built-ins (or RunOptions::registry) plus the
+  /// study's user models. Set by RunStudy(); the report layer and every later
+  /// table look model ids up here. May be null in a hand-made StudyRun.
+  std::shared_ptr<const ModelRegistry> registry;
 };
+
+/// The catalogue a study runs against: `base` (nullptr: ModelRegistry::Builtin())
+/// plus every model of study.user_models whose id `base` does not already hold,
+/// in file order.
+ModelRegistry StudyRegistry(const Study& study, const ModelRegistry* base = nullptr);
 
 /// True if every data point of `s` has a sigma (> 0): the fit is weighted by
 /// 1/sigma_i^2. Otherwise (no sigma at all) it is unweighted.
