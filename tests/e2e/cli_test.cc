@@ -82,7 +82,8 @@ class Scratch {
 
 const std::vector<std::string> kReportFiles = {"summary.txt", "parameters.csv",    "fits.csv",
                                                "residuals.csv", "alpha.csv",        "grain_modulus.csv",
-                                               "alpha_vti.csv", "results.json"};
+                                               "alpha_vti.csv", "moduli.csv",       "strain_residuals.csv",
+                                               "results.json"};
 
 // ---------------------------------------------------------------- command line
 

@@ -1,6 +1,7 @@
 #include <cmath>
 
 #include "format.h"
+#include "strain_writer.h"
 #include "porofit/core/units.h"
 #include "porofit/report/report.h"
 
@@ -423,6 +424,7 @@ Json ResultsJson(const StudyRun& run, const std::vector<InputDigest>& inputs, co
       }
     }
     js["fits"] = fits;
+    detail::AddStrainJson(run, i, js);  // strain samples: units of data, residuals, moduli
     js["grain_modulus"] = GrainJson(run, i);
     if (ss.fluid) {
       js["fluid_modulus"] = {{"K_f_GPa", Number(ss.fluid->k_f / units::kGPa)},

@@ -17,7 +17,8 @@ std::vector<InputDigest> DigestInputs(const Study& study) {
 
 std::vector<std::string> ReportFileNames() {
   return {"summary.txt", "parameters.csv", "fits.csv",          "residuals.csv",
-          "alpha.csv",   "grain_modulus.csv", "alpha_vti.csv", "results.json"};
+          "alpha.csv",   "grain_modulus.csv", "alpha_vti.csv", "moduli.csv", "strain_residuals.csv",
+          "results.json"};
 }
 
 void WriteReportFolder(const StudyRun& run, const std::filesystem::path& folder,
@@ -40,6 +41,8 @@ void WriteReportFolder(const StudyRun& run, const std::filesystem::path& folder,
         emit("alpha.csv", [&](std::ostream& o) { WriteAlphaCsv(run, o); });
         emit("grain_modulus.csv", [&](std::ostream& o) { WriteGrainModulusCsv(run, o); });
         emit("alpha_vti.csv", [&](std::ostream& o) { WriteVtiAlphaCsv(run, o); });
+        emit("moduli.csv", [&](std::ostream& o) { WriteModuliCsv(run, o); });
+        emit("strain_residuals.csv", [&](std::ostream& o) { WriteStrainResidualsCsv(run, o); });
         emit("results.json", [&](std::ostream& o) { WriteResultsJson(run, inputs, o, options); });
       },
       folder_options);
