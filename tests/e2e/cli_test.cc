@@ -191,7 +191,7 @@ TEST(SampleStudy, FitWritesEveryFileAndTheSummaryShowsEverySample) {
   EXPECT_NE(r.out.find("invented"), std::string::npos);
   EXPECT_EQ(Slurp(out / "summary.txt") +
                 "\nwrote summary.txt, parameters.csv, fits.csv, residuals.csv, alpha.csv, grain_modulus.csv, "
-                "alpha_vti.csv, results.json to " +
+                "alpha_vti.csv, moduli.csv, strain_residuals.csv, results.json to " +
                 out.string() + "\n",
             r.out);
   // Only the report files: no staging folder left next to it.
