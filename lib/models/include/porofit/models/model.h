@@ -62,9 +62,9 @@ struct ModelSpec {
   ValueGradientFn value_and_gradient;
   /// dy/dx, exact: the tangent modulus slope dK/dP for crack-closure models.
   std::function<double(const double* theta, double x)> slope;
-  /// Volumetric strain eps(x) = integral_0^x dx'/y(x') (compression positive),
-  /// in closed form, for models that have one (domain brief §3); empty
-  /// otherwise. Working units: for K in GPa and P in MPa, eps is MPa/GPa, so
+  /// Volumetric strain eps(x) = integral_0^x dx'/y(x') (compression positive):
+  /// in closed form where one exists (domain brief §3), else by quadrature
+  /// (see strain_method); empty for models without a strain (user formulas). Working units: for K in GPa and P in MPa, eps is MPa/GPa, so
   /// multiply by 1e-3 for a plain strain.
   std::function<double(const double* theta, double x)> strain;
   /// eps and d eps/d theta_j, exact: automatic differentiation (ceres::Jet)
