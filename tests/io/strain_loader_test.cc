@@ -6,6 +6,7 @@
 #include <string>
 
 #include "porofit/io/study_loader.h"
+#include "porofit/models/expression.h"
 #include "strain_columns.h"
 
 namespace porofit {
@@ -66,6 +67,23 @@ TEST(StrainLoader, WarnsWithTheRowLocationWhenStrainFallsAsPressureRises) {
   ASSERT_EQ(s.warnings.size(), 1u);
   EXPECT_EQ(s.warnings[0].rfind("falling.yaml:14:", 0), 0u) << s.warnings[0];
   EXPECT_NE(s.warnings[0].find("compression-positive strain should grow with pressure"), std::string::npos);
+}
+
+TEST(StrainLoader, RejectsAModelWithoutAStrainFormAtItsEntry) {
+  // A user formula model has no strain form; a strain sample cannot use it.
+  ModelRegistry registry;
+  registry.Add(MakeFormulaModel("my-line", "a + b*P", {{"a", "GPa", 1e9, 0, 100, 10, ""},
+                                                     {"b", "GPa/MPa", 1e3, -1, 1, 0.1, ""}}));
+  std::string text = kFallingStrain;
+  text.replace(text.find("[exp-modulus]"), 13, "[my-line]");
+  text.replace(text.find("[20, 1000]"), 10, "[20, 1900]");
+  try {
+    ParseStudy(text, "formula.yaml", registry);
+    FAIL() << "loaded";
+  } catch (const InputError& e) {
+    EXPECT_EQ(e.location().ToString(), "formula.yaml:16:14") << e.what();
+    EXPECT_NE(e.message().find("model 'my-line' has no strain form"), std::string::npos) << e.message();
+  }
 }
 
 TEST(StrainUnits, AcceptsTheDocumentedSpellings) {
