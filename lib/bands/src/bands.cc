@@ -111,7 +111,7 @@ BandResult ComputeBands(const BandRequest& r) {
     out.message = why;
     return out;
   }
-  const ModelSpec& m = *r.fit_request->model;
+  const ModelSpec& m = r.curve_model != nullptr ? *r.curve_model : *r.fit_request->model;
   const CurveGradient cg = EvaluateCurve(*r.fit, m, r.grid.pressure);
   out.k = cg.value;
   out.alpha.resize(out.k.size());

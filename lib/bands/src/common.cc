@@ -97,7 +97,7 @@ namespace detail {
 
 FitView ViewOf(const BandRequest& r) {
   FitView v;
-  v.model = r.fit_request->model;
+  v.model = r.curve_model != nullptr ? r.curve_model : r.fit_request->model;
   const FitResult& f = *r.fit;
   const size_t np = v.model->parameters.size();
   v.theta_working.resize(np);
@@ -133,6 +133,8 @@ std::string CheckRequest(const BandRequest& r, bool need_covariance, bool need_r
   if (f.status != FitStatus::kConverged)
     return "fit status is " + std::string(ToString(f.status)) + ": no bands from an unconverged fit";
   if (f.parameters.size() != m.parameters.size()) return "fit result does not match model " + m.id;
+  if (r.curve_model != nullptr && r.curve_model->parameters.size() != m.parameters.size())
+    return "curve model " + r.curve_model->id + " does not have the fit model's parameters";
   if (need_covariance) {
     const auto p = static_cast<Eigen::Index>(f.free_index.size());
     if (!f.covariance_ok || f.covariance.rows() != p || f.covariance.cols() != p)

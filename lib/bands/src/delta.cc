@@ -19,6 +19,8 @@ using Fast = boost::math::policies::policy<boost::math::policies::promote_double
 std::vector<double> NoiseSigma(const BandRequest& r, const std::vector<double>& k) {
   const FitData& d = r.fit_request->data;
   const ModelSpec& m = *r.fit_request->model;
+  // Data of another quantity than K (strain fits): no noise level of K known.
+  if (r.curve_model != nullptr && r.curve_model != r.fit_request->model) return std::vector<double>(r.grid.size(), kNaN);
   std::vector<double> out(r.grid.size(), m.y_si_factor);
   if (d.sigma.empty()) return out;
   std::vector<std::pair<double, double>> rel;

@@ -15,5 +15,6 @@ std::string_view ToString(Orientation o) {
   }
   return "unknown";
 }
+std::string_view ToString(Response r) { return r == Response::kStrain ? "strain" : "modulus"; }
 
 }  // namespace porofit

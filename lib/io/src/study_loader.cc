@@ -7,17 +7,20 @@
 #include <cmath>
 #include <filesystem>
 #include <fstream>
+#include <limits>
 #include <optional>
 #include <sstream>
 
 #include "porofit/core/dynamic.h"
 #include "porofit/core/units.h"
 #include "porofit/io/csv.h"
+#include "porofit/models/strain_form.h"
 #include "branch_settings.h"
 #include "scalar.h"
 #include "study_joint.h"
 #include "study_comparison.h"
 #include "study_user_models.h"
+#include "strain_columns.h"
 #include "yaml_map.h"
 
 namespace porofit {
@@ -102,7 +105,7 @@ struct Sigma {
   double Of(double x) const { return relative ? value * std::fabs(x) : value; }
 };
 
-Sigma ParseSigma(const Field& f, Quantity q) {
+Sigma ParseSigma(const Field& f, Quantity q, bool strain = false) {
   const std::string& text = f.Scalar();
   auto nt = SplitNumberUnit(text);
   if (!nt || nt->unit.empty())
@@ -113,7 +116,8 @@ Sigma ParseSigma(const Field& f, Quantity q) {
     s.relative = true;
     s.value = nt->value / 100.0;
   } else {
-    s.value = nt->value * UnitFactor(nt->unit, q, Quote(f.path), f.at);
+    s.value = nt->value * (strain ? io::detail::StrainUnitFactorOrThrow(nt->unit, Quote(f.path), f.at)
+                                  : UnitFactor(nt->unit, q, Quote(f.path), f.at));
   }
   if (!(std::isfinite(s.value) && s.value > 0))
     throw InputError(f.at, Quote(f.path) + " = " + text + " must be > 0");
@@ -327,7 +331,7 @@ std::vector<ModelChoice> ReadModels(const Field& f, const std::string& file, con
 
 // ----------------------------------------------------------------------- data
 
-enum Role { kPc, kPp, kP, kK, kVp, kVs, kRho, kSigmaK, kSigmaVp, kSigmaVs, kSigmaRho, kNumRoles };
+enum Role { kPc, kPp, kP, kK, kVp, kVs, kRho, kSigmaK, kSigmaVp, kSigmaVs, kSigmaRho, kEpsV, kSigmaEps, kNumRoles };
 
 struct RoleInfo {
   const char* name;
@@ -347,6 +351,8 @@ constexpr std::array<RoleInfo, kNumRoles> kRoles = {{
     {"sigma_Vp", Quantity::kVelocity, true},
     {"sigma_Vs", Quantity::kVelocity, true},
     {"sigma_rho", Quantity::kDensity, true},
+    {"eps_v", Quantity::kDimensionless, false},     // strain units: strain_columns.h
+    {"sigma_eps", Quantity::kDimensionless, true},
 }};
 
 struct Column {
@@ -394,6 +400,8 @@ Column ParseColumn(const YAML::Node& node, const std::string& file, const std::s
   if (info.sigma && c.unit == "%") {
     c.relative = true;
     c.factor = 0.01;
+  } else if (c.role == kEpsV || c.role == kSigmaEps) {
+    c.factor = io::detail::StrainUnitFactorOrThrow(c.unit, "column " + Quote(name), c.at);
   } else {
     c.factor = UnitFactor(c.unit, info.quantity, "column " + Quote(name), c.at);
   }
@@ -1105,12 +1113,12 @@ void Loader::ReadSample(const YAML::Node& node, size_t index) {
   }
 
   // Uncertainties declared for the whole sample.
-  std::optional<Sigma> u_k, u_vp, u_vs, u_rho;
+  std::optional<Sigma> u_k, u_vp, u_vs, u_rho, u_eps;
   std::optional<bool> calibrated;
   Field u_calibrated;
   if (uncertainty) {
     MapReader u(uncertainty.node, file_, "uncertainty of " + what, "uncertainty");
-    Field fk = u.Get("K"), fvp = u.Get("Vp"), fvs = u.Get("Vs"), frho = u.Get("rho");
+    Field fk = u.Get("K"), fvp = u.Get("Vp"), fvs = u.Get("Vs"), frho = u.Get("rho"), feps = u.Get("eps_v");
     u_calibrated = u.Get("calibrated");
     u.Finish();
     const bool dyn = s.kind == MeasurementKind::kDynamic;
@@ -1118,6 +1126,9 @@ void Loader::ReadSample(const YAML::Node& node, size_t index) {
       if (*f && !dyn)
         throw InputError(f->key_at, Quote(f->path) + " applies to dynamic samples only; " + what +
                                         " is static (give uncertainty.K)");
+    if (feps && dyn)
+      throw InputError(feps.key_at, "'uncertainty.eps_v' applies to static strain samples only; " + what + " is dynamic");
+    if (feps) u_eps = ParseSigma(feps, Quantity::kDimensionless, true);
     if (fk && dyn)
       throw InputError(fk.key_at, "'uncertainty.K' does not apply to dynamic " + what +
                                       ": give Vp, Vs and rho uncertainties, K's is propagated");
@@ -1165,7 +1176,21 @@ void Loader::ReadSample(const YAML::Node& node, size_t index) {
   } else {
     for (Role r : {kVp, kVs, kRho, kSigmaVp, kSigmaVs, kSigmaRho})
       forbid(r, "is for dynamic samples; " + what + " is static");
-    need(kK, "(static bulk modulus)");
+    if (columns[kEpsV]) {  // a strain sample: one response per sample
+      forbid(kK, "cannot be combined with a strain column 'eps_v': give one response per sample (K or eps_v)");
+      forbid(kSigmaK, "is the uncertainty of K, but " + what + " gives strain (use 'sigma_eps')");
+      if (u_k) throw InputError(uncertainty.at, "'uncertainty.K' does not apply to " + what +
+                                                    ", which gives strain (use 'uncertainty.eps_v')");
+      s.response = Response::kStrain;
+    } else {
+      need(kK, "(static bulk modulus) or 'eps_v' (volumetric strain)");
+      forbid(kSigmaEps, "needs a strain column 'eps_v' in " + what);
+      if (u_eps) throw InputError(uncertainty.at, "'uncertainty.eps_v' needs a strain column 'eps_v' in " + what);
+    }
+  }
+  if (dyn) {
+    forbid(kEpsV, "is for static samples; " + what + " is dynamic");
+    forbid(kSigmaEps, "is for static samples; " + what + " is dynamic");
   }
   auto both = [&](Role r, const std::optional<Sigma>& u, const char* key) {
     if (columns[r] && u)
@@ -1176,8 +1201,9 @@ void Loader::ReadSample(const YAML::Node& node, size_t index) {
   both(kSigmaVp, u_vp, "Vp");
   both(kSigmaVs, u_vs, "Vs");
   both(kSigmaRho, u_rho, "rho");
-  const bool has_sigma = u_k || u_vp || u_vs || u_rho || columns[kSigmaK] || columns[kSigmaVp] ||
-                         columns[kSigmaVs] || columns[kSigmaRho];
+  both(kSigmaEps, u_eps, "eps_v");
+  const bool has_sigma = u_k || u_vp || u_vs || u_rho || u_eps || columns[kSigmaK] || columns[kSigmaVp] ||
+                         columns[kSigmaVs] || columns[kSigmaRho] || columns[kSigmaEps];
   if (has_sigma && !calibrated)
     throw InputError(uncertainty ? uncertainty.at : m.at(),
                      what + " gives uncertainties but not 'uncertainty.calibrated' (true: the sigmas are absolute "
@@ -1203,7 +1229,7 @@ void Loader::ReadSample(const YAML::Node& node, size_t index) {
         throw InputError(c->at, std::string(kRoles[role].name) + " = " + ShowCell(*c, *columns[role]) + " must be > 0");
     };
     for (Role role : {kPc, kPp, kP}) nonnegative(role);
-    for (Role role : {kK, kVp, kVs, kRho, kSigmaK, kSigmaVp, kSigmaVs, kSigmaRho}) positive(role);
+    for (Role role : {kK, kVp, kVs, kRho, kSigmaK, kSigmaVp, kSigmaVs, kSigmaRho, kSigmaEps}) positive(role);
     if (cell(kP)) {
       p.pressure = cell(kP)->value;
       p.confining = p.pressure;
@@ -1220,7 +1246,14 @@ void Loader::ReadSample(const YAML::Node& node, size_t index) {
       if (const Cell* c = cell(col_role)) return columns[col_role]->relative ? c->value * std::fabs(value) : c->value;
       return u ? u->Of(value) : 0.0;
     };
-    if (!dyn) {
+    if (s.response == Response::kStrain) {
+      p.strain = cell(kEpsV)->value;
+      p.modulus = std::numeric_limits<double>::quiet_NaN();
+      p.sigma = sigma_of(kSigmaEps, u_eps, p.strain);
+      if (has_sigma && !(std::isfinite(p.sigma) && p.sigma > 0))
+        throw InputError(r.where, "uncertainty of eps_v = " + FormatNumber(p.sigma) +
+                                      " must be > 0 (a relative uncertainty of a zero strain is zero)");
+    } else if (!dyn) {
       p.modulus = cell(kK)->value;
       p.sigma = sigma_of(kSigmaK, u_k, p.modulus);
     } else {
@@ -1250,12 +1283,19 @@ void Loader::ReadSample(const YAML::Node& node, size_t index) {
     s.points.push_back(std::move(p));
   }
   s.sigma_absolute = has_sigma && *calibrated;
+  if (s.response == Response::kStrain)
+    for (const auto& [at, message] : io::detail::CheckStrainSeries(s.points, what, data.at)) Warn(at, message);
 
   // Models and fit options.
   if (models) ss.models = ReadModels(models, file_, *registry_);
   else ss.models = default_models_;
   if (ss.models.empty())
     throw InputError(m.at(), what + " has no models: list them under 'models' here or in 'defaults'");
+  if (s.response == Response::kStrain)
+    for (const ModelChoice& c : ss.models)
+      if (const ModelSpec* spec = registry_.Find(c.model_id); spec && !HasStrainForm(*spec))
+        throw InputError(c.where, "model " + Quote(c.model_id) + " has no strain form, but " + what +
+                                      " gives strain (eps_v); fit it to K data or choose another model");
   FitOptionsRead opts = defaults_fit_;
   if (fit) {
     FitOptionsRead own;

@@ -84,7 +84,10 @@ std::string DescribeModel(const ModelSpec& spec) {
     closure = "computed from the parameters (see notes)";
   out += Wrap(Pad("  closure:", kLabel), closure, kLabel);
   out += Wrap(Pad("  strain:", kLabel),
-              spec.strain ? "closed form eps(P) = integral of dP/K from 0" : "no closed form",
+              !spec.strain                          ? "not available"
+              : spec.strain_method == "gauss-legendre" ? "no closed form; eps(P) = integral of dP/K from 0 by a "
+                                                         "fixed Gauss-Legendre rule (16 graded panels)"
+                                                       : "closed form eps(P) = integral of dP/K from 0",
               kLabel);
   if (spec.requires_positive_x)
     out += Wrap(Pad("  domain:", kLabel), spec.x_symbol + " > 0 only", kLabel);

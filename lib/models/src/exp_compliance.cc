@@ -18,12 +18,13 @@ struct ExpCompliance {
     using std::exp;
     return T(1.0) / (th[0] + (th[1] - th[0]) * exp(-p / th[2]));
   }
+  // eps = C_inf P + (C_0 - C_inf) P_close (1 - exp(-P/P_close))  (domain brief §3, M2).
+  template <typename T>
+  static T Strain(const T* th, const T& p) {
+    using std::expm1;
+    return th[0] * p - (th[1] - th[0]) * th[2] * expm1(-p / th[2]);
+  }
 };
-
-// eps = C_inf P + (C_0 - C_inf) P_close (1 - exp(-P/P_close))  (domain brief §3, M2).
-double ExpComplianceStrain(const double* th, double p) {
-  return th[0] * p - (th[1] - th[0]) * th[2] * std::expm1(-p / th[2]);
-}
 
 }  // namespace
 
@@ -54,7 +55,7 @@ ModelSpec MakeExpComplianceModel() {
        "closure pressure scale: the crack compliance decays as exp(-P/P_close)"},
   };
   AttachFunctor<ExpCompliance>(s);
-  s.strain = ExpComplianceStrain;
+  AttachStrainAutodiff<ExpCompliance>(s);
   s.closure_parameter = 2;
   s.closure_pressure = [](const double* th) { return th[2]; };
   s.start = [params = s.parameters](std::span<const double> x, std::span<const double> y) {

@@ -18,13 +18,13 @@ struct ExpModulus {
     using std::exp;
     return th[0] - (th[0] - th[1]) * exp(-p / th[2]);
   }
+  // eps(P) = P/K_inf + (P_close/K_inf) ln[K(P)/K_0]  (domain brief §3, M1 [computed]).
+  template <typename T>
+  static T Strain(const T* th, const T& p) {
+    using std::log;
+    return p / th[0] + th[2] / th[0] * log(Eval(th, p) / th[1]);
+  }
 };
-
-// eps(P) = P/K_inf + (P_close/K_inf) ln[K(P)/K_0]  (domain brief §3, M1 [computed]).
-double ExpModulusStrain(const double* th, double p) {
-  const double k = ExpModulus::Eval<double>(th, p);
-  return p / th[0] + th[2] / th[0] * std::log(k / th[1]);
-}
 
 }  // namespace
 
@@ -57,7 +57,7 @@ ModelSpec MakeExpModulusModel() {
        "closure pressure scale: the crack term decays as exp(-P/P_close)"},
   };
   AttachFunctor<ExpModulus>(s);
-  s.strain = ExpModulusStrain;
+  AttachStrainAutodiff<ExpModulus>(s);
   s.closure_parameter = 2;
   s.closure_pressure = [](const double* th) { return th[2]; };
   s.start = [params = s.parameters](std::span<const double> x, std::span<const double> y) {

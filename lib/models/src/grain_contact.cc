@@ -22,14 +22,16 @@ struct GrainContact {
     if (p == 0.0) return th[0] * T(0.0);
     return th[0] * cbrt(p);
   }
+  // eps = integral_0^P dP'/(a P'^(1/3)) = (3/2) P^(2/3) / a.
+  template <typename T>
+  static T Strain(const T* th, const T& p) {
+    using std::cbrt;
+    if (p < 0.0) return T(kNaN);
+    if (p == 0.0) return th[0] * T(0.0);  // as in Eval: avoid 0 * inf in the Jet
+    const T c = cbrt(p);
+    return 1.5 * c * c / th[0];
+  }
 };
-
-// eps = integral_0^P dP'/(a P'^(1/3)) = (3/2) P^(2/3) / a.
-double GrainContactStrain(const double* th, double p) {
-  if (p < 0) return kNaN;
-  const double c = std::cbrt(p);
-  return 1.5 * c * c / th[0];
-}
 
 }  // namespace
 
@@ -61,7 +63,7 @@ ModelSpec MakeGrainContactModel() {
     const double c = std::cbrt(p);
     return th[0] / (3.0 * c * c);
   };
-  s.strain = GrainContactStrain;
+  AttachStrainAutodiff<GrainContact>(s);
   s.start = [params = s.parameters](std::span<const double> x, std::span<const double> y) {
     const Points p = PreparePoints(x, y, true, true);
     const DataScale sc = ScaleOf(p);

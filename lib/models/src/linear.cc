@@ -14,17 +14,19 @@ struct Linear {
   static T Eval(const T* th, const T& p) {
     return th[0] + th[1] * p;
   }
+  // eps = ln(1 + u)/b with u = b P/K_0, written as (P/K_0) * log1p(u)/u so it
+  // stays accurate as b -> 0, where it tends to P/K_0. Near u = 0 the series
+  // 1 - u/2 + u^2/3 - u^3/4 (error < u^4/5) keeps d eps/db exact at b = 0.
+  template <typename T>
+  static T Strain(const T* th, const T& p) {
+    using std::abs;
+    using std::log1p;
+    const T u = th[1] * p / th[0];
+    if (!(u > -1.0)) return T(std::numeric_limits<double>::quiet_NaN());
+    const T ratio = abs(u) < 1e-4 ? T(1.0) - u * (0.5 - u * (1.0 / 3.0 - 0.25 * u)) : log1p(u) / u;
+    return p / th[0] * ratio;
+  }
 };
-
-// eps = ln(1 + u)/b with u = b P/K_0, written as (P/K_0) * log1p(u)/u so it
-// stays accurate as b -> 0, where it tends to P/K_0.
-double LinearStrain(const double* th, double p) {
-  const double k0 = th[0], b = th[1];
-  const double u = b * p / k0;
-  if (!(u > -1)) return std::numeric_limits<double>::quiet_NaN();
-  const double ratio = (u == 0) ? 1.0 : std::log1p(u) / u;
-  return p / k0 * ratio;
-}
 
 }  // namespace
 
@@ -47,7 +49,7 @@ ModelSpec MakeLinearModel() {
        "pressure derivative of the modulus, dK/dP"},
   };
   AttachFunctor<Linear>(s);
-  s.strain = LinearStrain;
+  AttachStrainAutodiff<Linear>(s);
   s.start = [params = s.parameters](std::span<const double> x, std::span<const double> y) {
     const Points p = PreparePoints(x, y, false, false);
     const DataScale sc = ScaleOf(p);

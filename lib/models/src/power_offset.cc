@@ -21,16 +21,18 @@ struct PowerOffset {
     if (!(base > 0.0)) return T(kNaN);
     return th[0] * pow(base, th[1]);
   }
+  // eps = P_r / (K_0 (1 - n)) [(1 + P/P_r)^(1-n) - 1], via expm1/log1p so that
+  // small P/P_r keeps full precision.
+  template <typename T>
+  static T Strain(const T* th, const T& p) {
+    using std::expm1;
+    using std::log1p;
+    const T u = p / th[2];
+    if (!(u > -1.0)) return T(kNaN);
+    const T m = T(1.0) - th[1];
+    return th[2] / (th[0] * m) * expm1(m * log1p(u));
+  }
 };
-
-// eps = P_r / (K_0 (1 - n)) [(1 + P/P_r)^(1-n) - 1], via expm1/log1p so that
-// small P/P_r keeps full precision.
-double PowerOffsetStrain(const double* th, double p) {
-  const double u = p / th[2];
-  if (!(u > -1)) return kNaN;
-  const double m = 1.0 - th[1];
-  return th[2] / (th[0] * m) * std::expm1(m * std::log1p(u));
-}
 
 }  // namespace
 
@@ -56,7 +58,7 @@ ModelSpec MakePowerOffsetModel() {
        "pressure scale of the transition from constant to power-law modulus"},
   };
   AttachFunctor<PowerOffset>(s);
-  s.strain = PowerOffsetStrain;
+  AttachStrainAutodiff<PowerOffset>(s);
   s.closure_parameter = 2;
   s.closure_pressure = [](const double* th) { return th[2]; };
   s.start = [params = s.parameters](std::span<const double> x, std::span<const double> y) {

@@ -20,14 +20,16 @@ struct PowerRef {
     if (!(p > 0.0)) return T(kNaN);  // ln P enters dK/dn: undefined at P <= 0
     return th[0] * pow(p / th[2], th[1]);
   }
+  // eps = integral_0^P dP'/K = P / ((1 - n) K(P)) = (P_ref/K_ref) (P/P_ref)^(1-n) / (1 - n):
+  // the integral converges at 0 because n < 1, and eps -> 0 as P -> 0 (its
+  // parameter derivatives too, so P = 0 gives exactly 0 with zero gradient).
+  template <typename T>
+  static T Strain(const T* th, const T& p) {
+    if (p == 0.0) return th[0] * T(0.0);
+    if (!(p > 0.0)) return T(kNaN);
+    return p / ((T(1.0) - th[1]) * Eval(th, p));
+  }
 };
-
-// eps = integral_0^P dP'/K = P / ((1 - n) K(P)), finite because n < 1.
-double PowerRefStrain(const double* th, double p) {
-  if (p == 0) return 0.0;
-  if (!(p > 0)) return kNaN;
-  return p / ((1.0 - th[1]) * PowerRef::Eval<double>(th, p));
-}
 
 }  // namespace
 
@@ -54,7 +56,7 @@ ModelSpec MakePowerRefModel() {
        "reference pressure; start: geometric mean of the positive data pressures"},
   };
   AttachFunctor<PowerRef>(s);
-  s.strain = PowerRefStrain;
+  AttachStrainAutodiff<PowerRef>(s);
   s.requires_positive_x = true;
   s.start = [params = s.parameters](std::span<const double> x, std::span<const double> y) {
     const Points p = PreparePoints(x, y, true, true);

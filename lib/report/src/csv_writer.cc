@@ -65,20 +65,22 @@ void WriteFitsCsv(const StudyRun& run, std::ostream& out) {
       run.metadata.tool_version,
       {"ssr = sum of squared weighted residuals, in ssr_unit (1 when every point has a sigma, GPa^2 when "
        "unweighted); chi2_reduced = ssr/dof; rmse_GPa from raw residuals; aic, aicc, bic from the Gaussian "
-       "log-likelihood; flags separated by ';' (see docs/outputs.md); blank = not computed"});
+       "log-likelihood; flags separated by ';' (see docs/outputs.md); blank = not computed; strain samples: "
+       "ssr of strain residuals (strain^2 when unweighted), rmse_GPa blank (rmse_strain in results.json)"});
   out << "sample,lithology,kind,branch,cycle,model,status,n,p,dof,ssr,ssr_unit,chi2_reduced,rmse_GPa,"
          "r_squared,aic,aicc,bic,max_abs_correlation,flags,message,iterations,starts,starts_converged\n";
   for (size_t i = 0; i < run.study.samples.size() && i < run.samples.size(); ++i) {
     const StudySample& ss = run.study.samples[i];
     const bool weighted = IsWeighted(ss.sample);
+    const bool strain = IsStrainSample(ss);  // residuals in strain: rmse in results.json (rmse_strain)
     for (const FitResult& r : run.samples[i].fits) {
       const bool has = HasStatistics(r);
       auto stat = [&](double v) { return has ? Num(v) : std::string(); };
       std::vector<std::string> row = SampleFields(ss.sample);
       row.insert(row.end(),
                  {CsvField(r.model_id), std::string(ToString(r.status)), std::to_string(r.n), std::to_string(r.p),
-                  std::to_string(r.dof), stat(r.ssr), weighted ? "1" : "GPa^2", stat(r.chi2_reduced),
-                  stat(r.rmse / units::kGPa), stat(r.r_squared), stat(r.aic), stat(r.aicc), stat(r.bic),
+                  std::to_string(r.dof), stat(r.ssr), weighted ? "1" : strain ? "strain^2" : "GPa^2",
+                  stat(r.chi2_reduced), strain ? std::string() : stat(r.rmse / units::kGPa), stat(r.r_squared), stat(r.aic), stat(r.aicc), stat(r.bic),
                   has && r.covariance_ok ? Num(r.max_abs_correlation) : std::string(),
                   CsvField(detail::Join(detail::FitFlags(r, ss.options), ";")), CsvField(r.message),
                   std::to_string(r.iterations), std::to_string(r.starts_tried), std::to_string(r.starts_converged)});
@@ -94,12 +96,14 @@ void WriteResidualsCsv(const StudyRun& run, std::ostream& out) {
       {"pressure_MPa is the differential pressure P = P_c - n P_p; residual_GPa = observed - fitted; "
        "standardized_residual is internally studentised (residual / (s sigma sqrt(1 - leverage))); "
        "sigma_K_GPa blank when the data carry no uncertainty; point = 1-based index in the sample's data; "
-       "robust_weight = weight the robust loss gave the point (1 without a robust loss)"});
+       "robust_weight = weight the robust loss gave the point (1 without a robust loss); "
+       "fits of strain samples are in strain_residuals.csv (residuals in strain units)"});
   out << "sample,model,point,location,pressure_MPa,observed_K_GPa,fitted_K_GPa,sigma_K_GPa,residual_GPa,"
          "standardized_residual,leverage,robust_weight\n";
   for (size_t i = 0; i < run.study.samples.size() && i < run.samples.size(); ++i) {
     const Sample& s = run.study.samples[i].sample;
     const bool weighted = IsWeighted(s);
+    if (IsStrainSample(run.study.samples[i])) continue;  // in strain units: strain_residuals.csv
     for (const FitResult& r : run.samples[i].fits) {
       if (!HasStatistics(r)) continue;
       const ResidualDiagnostics& d = r.residuals;

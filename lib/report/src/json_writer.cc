@@ -3,6 +3,7 @@
 #include "branch_writer.h"
 #include "comparison_writer.h"
 #include "format.h"
+#include "strain_writer.h"
 #include "porofit/core/units.h"
 #include "porofit/report/report.h"
 #include "user_models_report.h"
@@ -429,6 +430,7 @@ Json ResultsJson(const StudyRun& run, const std::vector<InputDigest>& inputs, co
       }
     }
     js["fits"] = fits;
+    detail::AddStrainJson(run, i, js);  // strain samples: units of data, residuals, moduli
     js["grain_modulus"] = GrainJson(run, i);
     if (ss.fluid) {
       js["fluid_modulus"] = {{"K_f_GPa", Number(ss.fluid->k_f / units::kGPa)},

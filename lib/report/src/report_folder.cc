@@ -17,9 +17,9 @@ std::vector<InputDigest> DigestInputs(const Study& study) {
 
 std::vector<std::string> ReportFileNames() {
   return {"summary.txt", "parameters.csv", "fits.csv",          "residuals.csv",
-          "alpha.csv",   "grain_modulus.csv", "alpha_vti.csv", "comparison.csv", "nested_tests.csv",
-          "comparison_groups.csv", "branch_tests.csv", "hysteresis.csv", "joint_fits.csv", "joint_tests.csv",
-          "joint_alpha.csv", "results.json"};
+          "alpha.csv",   "grain_modulus.csv", "alpha_vti.csv", "moduli.csv", "strain_residuals.csv",
+          "comparison.csv", "nested_tests.csv", "comparison_groups.csv", "branch_tests.csv", "hysteresis.csv",
+          "joint_fits.csv", "joint_tests.csv", "joint_alpha.csv", "results.json"};
 }
 
 void WriteReportFolder(const StudyRun& run, const std::filesystem::path& folder,
@@ -42,6 +42,8 @@ void WriteReportFolder(const StudyRun& run, const std::filesystem::path& folder,
         emit("alpha.csv", [&](std::ostream& o) { WriteAlphaCsv(run, o); });
         emit("grain_modulus.csv", [&](std::ostream& o) { WriteGrainModulusCsv(run, o); });
         emit("alpha_vti.csv", [&](std::ostream& o) { WriteVtiAlphaCsv(run, o); });
+        emit("moduli.csv", [&](std::ostream& o) { WriteModuliCsv(run, o); });
+        emit("strain_residuals.csv", [&](std::ostream& o) { WriteStrainResidualsCsv(run, o); });
         emit("comparison.csv", [&](std::ostream& o) { WriteComparisonCsv(run, o); });
         emit("nested_tests.csv", [&](std::ostream& o) { WriteNestedTestsCsv(run, o); });
         emit("comparison_groups.csv", [&](std::ostream& o) { WriteComparisonGroupsCsv(run, o); });

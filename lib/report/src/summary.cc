@@ -134,7 +134,11 @@ void SampleBlock(const StudySample& ss, const SampleRun& sr, std::ostream& out) 
     flags_width = std::max(flags_width, detail::Join(detail::FitFlags(r, ss.options), ",").size());
   }
   flags_width += 2;
-  out << "  " << Pad("model", 15) << Pad("status", 16) << PadLeft("RMSE GPa", 10) << PadLeft("AICc", 10) << "  "
+  const bool strain = IsStrainSample(ss);  // residuals in strain: RMSE in microstrain
+  if (strain)
+    out << "  response: volumetric strain eps_v, fitted in strain form (K-model parameters); tangent, secant and "
+           "chord moduli in moduli.csv\n";
+  out << "  " << Pad("model", 15) << Pad("status", 16) << PadLeft(strain ? "RMSE ustr" : "RMSE GPa", 10) << PadLeft("AICc", 10) << "  "
       << Pad("flags", flags_width) << "parameters (estimate ± 1 SE)\n";
   const FitResult* best = nullptr;
   const FitResult* second = nullptr;
@@ -142,7 +146,7 @@ void SampleBlock(const StudySample& ss, const SampleRun& sr, std::ostream& out) 
     const bool has = r.status == FitStatus::kConverged || r.status == FitStatus::kMaxIterations;
     const std::vector<std::string> flags = detail::FitFlags(r, ss.options);
     out << "  " << Pad(r.model_id, 15) << Pad(std::string(ToString(r.status)), 16)
-        << PadLeft(has ? Fmt("%.4f", r.rmse / units::kGPa) : "-", 10)
+        << PadLeft(has ? (strain ? Fmt("%.2f", r.rmse * 1e6) : Fmt("%.4f", r.rmse / units::kGPa)) : "-", 10)
         << PadLeft(has ? Fmt("%.2f", r.aicc) : "-", 10) << "  " << Pad(flags.empty() ? "-" : detail::Join(flags, ","), flags_width)
         << ParameterText(r) << "\n";
     if (r.status != FitStatus::kConverged) out << "      ! " << r.message << "\n";

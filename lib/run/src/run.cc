@@ -6,9 +6,11 @@
 #include <cmath>
 #include <ctime>
 #include <exception>
+#include <optional>
 #include <thread>
 
 #include "porofit/core/error.h"
+#include "porofit/models/strain_form.h"
 #include "porofit/poro/poroelastic.h"
 #include "porofit/version.h"
 
@@ -61,7 +63,7 @@ FitRequest MakeFitRequest(const StudySample& sample, const ModelChoice& choice, 
   req.data.y.reserve(s.points.size());
   for (const DataPoint& p : s.points) {
     req.data.x.push_back(p.pressure);
-    req.data.y.push_back(p.modulus);
+    req.data.y.push_back(s.response == Response::kStrain ? p.strain : p.modulus);
     if (weighted) req.data.sigma.push_back(p.sigma);
   }
   return req;
@@ -80,6 +82,7 @@ FitResult RunOne(const StudySample& sample, const ModelChoice& choice, const Mod
                         "sigma is given for " + std::to_string(with_sigma) + " of " + std::to_string(n) +
                             " points; give it for all points or none");
   }
+  if (IsStrainSample(sample)) return RunOneStrain(sample, choice, *model);
   // Fit() promises not to throw for a failing fit; an exception here would be
   // a library defect, but one sample must not take the whole study down, so it
   // is recorded as this fit's failure and reported.
@@ -125,10 +128,14 @@ bands::BandResult RunBands(const StudySample& sample, const ModelChoice& choice,
   if (fit.status != FitStatus::kConverged)
     return NotComputed("fit status " + std::string(ToString(fit.status)) + ": no bands");
   const ModelSpec* model = registry.Find(choice.model_id);
-  const FitRequest request = MakeFitRequest(sample, choice, model);
+  // A strain fit is refitted (bootstrap) in strain form but its bands are of K.
+  std::optional<ModelSpec> strain_form;
+  if (IsStrainSample(sample) && model != nullptr && HasStrainForm(*model)) strain_form = StrainForm(*model);
+  const FitRequest request = MakeFitRequest(sample, choice, strain_form ? &*strain_form : model);
   bands::BandRequest br;
   br.fit_request = &request;
   br.fit = &fit;
+  if (strain_form) br.curve_model = model;
   br.k_s = sample.grain.value.k_s;
   br.sigma_k_s = sample.grain.value.sigma_k_s;
   br.mu_s = sample.grain.value.mu_s;
@@ -303,6 +310,7 @@ StudyRun RunStudy(const Study& study, const RunOptions& options) {
     run.samples[i].bands = std::move(band_results);
     run.samples[i].vti = std::move(vti);
     run.samples[i].vti_fits = std::move(vti_fits);
+    run.samples[i].strain_moduli = RunStrainModuli(s, run.samples[i].fits, registry);
     run.samples[i].comparison = RunComparison(s, run.samples[i].fits, study.comparison, registry);
   };
 

@@ -45,6 +45,14 @@ struct BandRequest {
   /// The fit, with covariance (delta method, Monte Carlo) and residual
   /// diagnostics (leverages for the bootstrap).
   const FitResult* fit = nullptr;
+  /// The model whose value is the band's K, evaluated at the fit's parameters
+  /// and covariance; nullptr: fit_request->model. A strain fit
+  /// (porofit/models/strain_form.h) sets its K-model here: the fit, Monte
+  /// Carlo draws and bootstrap refits stay in strain form, the bands are of K
+  /// and alpha. It must have the same parameters as fit_request->model. The
+  /// delta prediction bands need the noise of K and are then NaN (the data
+  /// measure strain, not K).
+  const ModelSpec* curve_model = nullptr;
 
   double k_s = std::numeric_limits<double>::quiet_NaN();  ///< grain bulk modulus, Pa, > 0
   double sigma_k_s = 0;                                    ///< its 1-sigma, Pa, >= 0

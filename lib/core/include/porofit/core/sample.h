@@ -1,5 +1,6 @@
 #pragma once
 // One core plug's measurements, as read from a study file. SI units throughout.
+#include <limits>
 #include <optional>
 #include <string>
 #include <vector>
@@ -13,6 +14,12 @@ namespace porofit {
 enum class MeasurementKind {
   kStatic,   ///< drained static test: tangent bulk modulus given directly
   kDynamic,  ///< ultrasonic Vp, Vs and density; K computed per point
+};
+
+/// What a static sample's response column is. A sample has one response.
+enum class Response {
+  kModulus,  ///< tangent bulk modulus K per step (column K)
+  kStrain,   ///< volumetric strain eps_v per step (column eps_v), compression positive
 };
 
 /// Pressure path of the data set. Loading and unloading are never pooled.
@@ -29,14 +36,18 @@ enum class Orientation {
 std::string_view ToString(MeasurementKind k);
 std::string_view ToString(Branch b);
 std::string_view ToString(Orientation o);
+std::string_view ToString(Response r);
 
 /// One pressure step.
 struct DataPoint {
   double confining = 0;    ///< P_c, Pa
   double pore = 0;         ///< P_p, Pa
   double pressure = 0;     ///< differential pressure P = P_c - n P_p, Pa
-  double modulus = 0;      ///< K_dry, Pa (static: as given; dynamic: computed)
-  double sigma = 0;        ///< 1-sigma uncertainty of `modulus`, Pa; 0 = not given
+  double modulus = 0;      ///< K_dry, Pa (static: as given; dynamic: computed); NaN for a strain sample
+  double sigma = 0;        ///< 1-sigma uncertainty of the response (`modulus` in Pa, or `strain`); 0 = not given
+  /// Volumetric strain eps_v (plain, dimensionless; compression positive:
+  /// eps_v = -dV/V from the state at P = 0) for Response::kStrain; NaN otherwise.
+  double strain = std::numeric_limits<double>::quiet_NaN();
   std::optional<WaveData> waves;         ///< dynamic only: the raw velocities
   std::optional<DynamicModuli> dynamic;  ///< dynamic only: derived moduli and QC
   SourceLocation where;    ///< where this point was written (row of a CSV or YAML item)
@@ -56,6 +67,7 @@ struct Sample {
   double bulk_density = 0;        ///< kg/m^3
   Orientation orientation = Orientation::kUnknown;
   MeasurementKind kind = MeasurementKind::kStatic;
+  Response response = Response::kModulus;  ///< static samples only; dynamic samples are kModulus
   Branch branch = Branch::kLoading;
   int cycle = 1;                  ///< 1 = first loading cycle
   double effective_pressure_coefficient = 1.0;  ///< n in P = P_c - n P_p

@@ -14,6 +14,7 @@
 #include <span>
 #include <string>
 #include <string_view>
+#include <utility>
 #include <vector>
 
 namespace porofit {
@@ -61,11 +62,19 @@ struct ModelSpec {
   ValueGradientFn value_and_gradient;
   /// dy/dx, exact: the tangent modulus slope dK/dP for crack-closure models.
   std::function<double(const double* theta, double x)> slope;
-  /// Volumetric strain eps(x) = integral_0^x dx'/y(x') (compression positive),
-  /// in closed form, for models that have one (domain brief §3); empty
-  /// otherwise. Working units: for K in GPa and P in MPa, eps is MPa/GPa, so
+  /// Volumetric strain eps(x) = integral_0^x dx'/y(x') (compression positive):
+  /// in closed form where one exists (domain brief §3), else by quadrature
+  /// (see strain_method); empty for models without a strain (user formulas). Working units: for K in GPa and P in MPa, eps is MPa/GPa, so
   /// multiply by 1e-3 for a plain strain.
   std::function<double(const double* theta, double x)> strain;
+  /// eps and d eps/d theta_j, exact: automatic differentiation (ceres::Jet)
+  /// through the closed form, or through a fixed composite Gauss–Legendre rule
+  /// (porofit/models/strain_form.h) where there is none. Same units as
+  /// `strain`; empty exactly when `strain` is empty.
+  ValueGradientFn strain_and_gradient;
+  /// How `strain` is evaluated: "closed form", "gauss-legendre" (fixed
+  /// quadrature of 1/K, exact derivatives through it) or "" (no strain).
+  std::string strain_method;
   /// Start heuristic from the data (working units; x need not be sorted).
   /// Must return parameters().size() finite values strictly inside the bounds.
   std::function<std::vector<double>(std::span<const double> x, std::span<const double> y)> start;
@@ -116,6 +125,24 @@ void AttachAutodiff(ModelSpec& spec) {
     for (int j = 0; j < N; ++j) t[j] = J(theta[j]);
     return F::template Eval<J>(t, J(x, 0)).v[0];
   };
+}
+
+/// Sets strain, strain_and_gradient and strain_method from a functor with
+///   template <typename T> static T Strain(const T* theta, const T& x);
+/// (the same F as AttachAutodiff; `method` names how Strain integrates 1/K).
+template <class F>
+void AttachStrainAutodiff(ModelSpec& spec, std::string method = "closed form") {
+  constexpr int N = F::kNumParameters;
+  spec.strain = [](const double* theta, double x) { return F::template Strain<double>(theta, x); };
+  spec.strain_and_gradient = [](const double* theta, double x, double* grad) {
+    using J = ceres::Jet<double, N>;
+    J t[N];
+    for (int j = 0; j < N; ++j) t[j] = J(theta[j], j);
+    const J e = F::template Strain<J>(t, J(x));
+    for (int j = 0; j < N; ++j) grad[j] = e.v[j];
+    return e.a;
+  };
+  spec.strain_method = std::move(method);
 }
 
 }  // namespace porofit

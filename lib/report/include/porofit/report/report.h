@@ -75,6 +75,12 @@ void WriteGrainModulusCsv(const StudyRun& run, std::ostream& out);
 /// alpha_vti.csv: one row per VTI stiffness row of a sample with K_s.
 void WriteVtiAlphaCsv(const StudyRun& run, std::ostream& out);
 
+/// moduli.csv: tangent (with band), secant and chord moduli of strain samples
+/// (SampleRun::strain_moduli); only the header for studies without any.
+void WriteModuliCsv(const StudyRun& run, std::ostream& out);
+/// strain_residuals.csv: residuals of strain-form fits, in strain units
+/// (residuals.csv lists the modulus fits only).
+void WriteStrainResidualsCsv(const StudyRun& run, std::ostream& out);
 /// comparison.csv: one row per (sample, model): criteria, differences,
 /// weights, rank and cross-validation scores.
 void WriteComparisonCsv(const StudyRun& run, std::ostream& out);

@@ -10,6 +10,7 @@
 // results are placed by index, so the output is identical for any thread count.
 // Failure: a fit that fails is a FitResult status (with message), never an
 // exception; RunStudy() itself throws only std::bad_alloc-like system errors.
+#include <limits>
 #include <memory>
 #include <string>
 #include <vector>
@@ -78,6 +79,34 @@ struct VtiStiffnessFit {
   FitResult fit;          ///< status and message say why, if it failed
 };
 
+/// One row of a strain sample's moduli table (moduli.csv), SI. Sources:
+///  - "fitted": the fitted curve at a pressure of the sample's band grid:
+///    eps_v(P; theta_hat), the tangent K_t = K(P; theta_hat) = dP/d eps from the
+///    fitted derivative (never from differencing data) with its delta-method
+///    band g^T Cov g (t_{n-p} quantile when the covariance is scaled, else
+///    normal), and the secant K_sec = P / eps_v(P; theta_hat);
+///  - "fitted-chord": Delta P / Delta eps of the fitted curve between
+///    consecutive distinct data pressures;
+///  - "data-chord": Delta P / Delta eps of the data between consecutive
+///    distinct pressures (repeats averaged), model_id "" (no model involved).
+/// Numbers that do not apply to a row are NaN.
+struct StrainModulusPoint {
+  std::string model_id;  ///< "" for "data-chord"
+  std::string source;    ///< "fitted", "fitted-chord" or "data-chord"
+  double pressure = 0;   ///< Pa: grid pressure, or chord midpoint
+  double pressure_from = std::numeric_limits<double>::quiet_NaN();  ///< chord start, Pa
+  double pressure_to = std::numeric_limits<double>::quiet_NaN();    ///< chord end, Pa
+  double strain = std::numeric_limits<double>::quiet_NaN();         ///< fitted eps_v at `pressure` (plain strain)
+  double tangent = std::numeric_limits<double>::quiet_NaN();        ///< K_t, Pa
+  double tangent_se = std::numeric_limits<double>::quiet_NaN();     ///< 1-sigma of K_t, Pa
+  double tangent_lower = std::numeric_limits<double>::quiet_NaN();  ///< confidence band of K_t, Pa
+  double tangent_upper = std::numeric_limits<double>::quiet_NaN();
+  double confidence = 0;  ///< level of the band (StudySample::bands.options.confidence)
+  double secant = std::numeric_limits<double>::quiet_NaN();  ///< P / eps_v, Pa (NaN at P = 0)
+  double chord = std::numeric_limits<double>::quiet_NaN();   ///< Delta P / Delta eps, Pa
+  bool extrapolated = false;  ///< grid pressure outside the data range
+};
+
 /// The fits of one sample, in the order of StudySample::models, and their
 /// alpha bands.
 struct SampleRun {
@@ -94,6 +123,12 @@ struct SampleRun {
   /// The four stiffness fits (C11, C12, C13, C33) when vti_stiffness.fit is
   /// given, else empty.
   std::vector<VtiStiffnessFit> vti_fits;
+  /// Strain samples only (Sample::response == kStrain), else empty: the
+  /// sample's data chords, then for each usable fit its "fitted" and
+  /// "fitted-chord" rows (see StrainModulusPoint). The fits in `fits` are
+  /// strain-form fits of each K-model: same id and parameters, residuals in
+  /// plain strain.
+  std::vector<StrainModulusPoint> strain_moduli;
   /// Model comparison of `fits` (Study::comparison; lib/run/src/compare_run.cc).
   compare::SampleComparison comparison;
 };
@@ -142,10 +177,24 @@ ModelRegistry StudyRegistry(const Study& study, const ModelRegistry* base = null
 bool IsWeighted(const Sample& s);
 
 /// Builds the fit request for one sample and model choice: x = P (differential
-/// pressure, Pa), y = K (Pa), sigma = DataPoint::sigma when every point has
-/// one (> 0), otherwise unweighted. `model` may be nullptr (unknown id): the
+/// pressure, Pa), y = K (Pa) — or, for a strain sample, y = eps_v (plain
+/// strain; `model` must then be the strain form, StrainForm()) — sigma =
+/// DataPoint::sigma when every point has one (> 0), otherwise unweighted. `model` may be nullptr (unknown id): the
 /// caller then reports kInvalidRequest.
 FitRequest MakeFitRequest(const StudySample& sample, const ModelChoice& choice, const ModelSpec* model);
+
+/// True for a static sample whose response is volumetric strain.
+bool IsStrainSample(const StudySample& sample);
+
+/// Fits one model choice to a strain sample in strain form (StrainForm of the
+/// catalogue model; lib/run/src/strain_run.cc). Never throws for a failing fit;
+/// a model without a strain form is kInvalidRequest.
+FitResult RunOneStrain(const StudySample& sample, const ModelChoice& choice, const ModelSpec& k_model);
+
+/// The moduli table of a strain sample (SampleRun::strain_moduli) from its
+/// fits (parallel to sample.models). Empty for a sample that is not a strain sample.
+std::vector<StrainModulusPoint> RunStrainModuli(const StudySample& sample, const std::vector<FitResult>& fits,
+                                                const ModelRegistry& registry);
 
 /// Fits one model choice to one sample; never throws for a failing fit.
 FitResult RunOne(const StudySample& sample, const ModelChoice& choice, const ModelRegistry& registry);
