@@ -1293,7 +1293,7 @@ void Loader::ReadSample(const YAML::Node& node, size_t index) {
     throw InputError(m.at(), what + " has no models: list them under 'models' here or in 'defaults'");
   if (s.response == Response::kStrain)
     for (const ModelChoice& c : ss.models)
-      if (const ModelSpec* spec = registry_.Find(c.model_id); spec && !HasStrainForm(*spec))
+      if (const ModelSpec* spec = registry_->Find(c.model_id); spec && !HasStrainForm(*spec))
         throw InputError(c.where, "model " + Quote(c.model_id) + " has no strain form, but " + what +
                                       " gives strain (eps_v); fit it to K data or choose another model");
   FitOptionsRead opts = defaults_fit_;
