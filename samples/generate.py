@@ -205,6 +205,26 @@ defaults:
     seed: {SEED}
     grid: {{count: 61}}
 
+# Model ranking: AICc weights per sample, nested F tests where the nesting is
+# regular, a refit without the highest-pressure step of each model to see how
+# it extrapolates, and win counts per lithology.
+comparison:
+  criterion: aicc
+  group_by: [lithology]
+  cross_validation: {{high_pressure_holdout: true, holdout_points: 1}}
+
+# A model of the study's own (illustrative): a stretched-exponential closure
+# law, fitted beside the built-ins to the limestone plug.
+user_models:
+  - id: stretched-exp
+    name: stretched exponential closure (illustrative)
+    formula: K = K_inf - (K_inf - K_0) * exp(-sqrt(P / P_close))
+    closure_parameter: P_close
+    parameters:
+      K_inf: {{unit: GPa, start: 40, lower: 0}}
+      K_0: {{unit: GPa, start: 20, lower: 0}}
+      P_close: {{unit: MPa, start: 10, lower: 0.01, transform: log}}
+
 # A mineral added to the built-in table (values for the demonstration).
 minerals:
   dry_clay_aggregate:
@@ -231,6 +251,7 @@ samples:
   # Clean sandstone, static, first loading. Row {OUTLIER_INDEX + 1} of the CSV is an
   # obvious outlier (gauge slip, 35 % low), so this plug uses a Cauchy loss.
   - id: QV14-2231V
+    plug: QV14-2231V
     lithology: clean sandstone
     porosity: 21 %
     bulk_density: 2.09 g/cc
@@ -257,6 +278,7 @@ samples:
 
   # The same plug unloading from 60 MPa: stiffer than loading at equal P.
   - id: QV14-2231V-unload
+    plug: QV14-2231V
     lithology: clean sandstone
     porosity: 21 %
     bulk_density: 2.09 g/cc
@@ -281,6 +303,7 @@ samples:
 
   # The same plug, dry ultrasonic velocities on loading.
   - id: QV14-2231V-dyn
+    plug: QV14-2231V
     lithology: clean sandstone
     porosity: 21 %
     bulk_density: 2.09 g/cc
@@ -353,6 +376,7 @@ samples:
       - id: power-ref
         parameters:
           P_ref: {{fixed: 15 MPa}}
+      - stretched-exp
     grain_modulus:
       measured:
         K_s: 71.5 GPa
