@@ -14,6 +14,7 @@
 #include "porofit/core/units.h"
 #include "porofit/io/csv.h"
 #include "scalar.h"
+#include "study_batch.h"
 #include "yaml_map.h"
 
 namespace porofit {
@@ -828,7 +829,7 @@ Study Loader::Parse(std::string_view text) {
   MapReader top(root, file_, "the study");
   Field version = top.Get("version"), name = top.Get("name"), description = top.Get("description"),
         defaults = top.Get("defaults"), samples = top.Get("samples"), minerals = top.Get("minerals"),
-        grain_moduli = top.Get("grain_moduli");
+        grain_moduli = top.Get("grain_moduli"), sample_table = top.Get("sample_table");
   top.Finish();
   if (version && version.Integer() != 1)
     throw InputError(version.at, "version = " + version.Scalar() + " is not supported (this loader reads version 1)");
@@ -871,13 +872,20 @@ Study Loader::Parse(std::string_view text) {
     if (models) default_models_ = ReadModels(models, file_, registry_);
   }
 
-  if (!samples) throw InputError(top.at(), "missing required key 'samples' in the study");
-  samples.ExpectList();
-  if (samples.node.size() == 0) throw InputError(samples.at, "'samples' is empty: the study has no samples");
-  const YAML::Node& list = samples.node;
-  for (size_t i = 0; i < list.size(); ++i) ReadSample(list[i], i);
+  if (!samples && !sample_table) throw InputError(top.at(), "missing required key 'samples' in the study");
+  if (samples) {
+    samples.ExpectList();
+    if (samples.node.size() == 0) throw InputError(samples.at, "'samples' is empty: the study has no samples");
+    const YAML::Node& list = samples.node;
+    for (size_t i = 0; i < list.size(); ++i) ReadSample(list[i], i);
+  }
+  if (sample_table) {  // the batch form (study_batch.cc)
+    io::detail::BatchDefaults b{&default_models_, defaults_fit_.options, defaults_fit_.scale_covariance,
+                                defaults_fit_.scale_covariance_at, default_bands_, &groups_, any_grain_};
+    io::detail::ReadSampleTable(sample_table, file_, registry_, b, study_);
+  }
   if (any_grain_) {
-    for (size_t i = 0; i < study_.samples.size(); ++i)
+    for (size_t i = 0; i < wrote_grain_.size(); ++i)
       if (!wrote_grain_[i])
         throw InputError(study_.samples[i].sample.where,
                          "sample " + Quote(study_.samples[i].sample.id) +
