@@ -123,6 +123,11 @@ bands::BandResult RunBands(const StudySample& sample, const ModelChoice& choice,
 std::vector<VtiAlphaPoint> RunVti(const StudySample& sample, const ModelRegistry& registry,
                                   std::vector<VtiStiffnessFit>& fits);
 
+/// Everything RunStudy() computes for one sample: its fits, alpha bands and
+/// VTI points. Never throws for a failing fit. The streaming runner
+/// (porofit/run/stream.h) and RunStudy() both call it.
+SampleRun RunSample(const StudySample& sample, const ModelRegistry& registry);
+
 /// Runs the whole study. Requires options.Validate().empty() (checked: a bad
 /// option is a programmer error and aborts).
 StudyRun RunStudy(const Study& study, const RunOptions& options);
