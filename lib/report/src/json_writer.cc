@@ -3,6 +3,7 @@
 #include "format.h"
 #include "porofit/core/units.h"
 #include "porofit/report/report.h"
+#include "porofit/report/stream.h"
 
 namespace porofit {
 namespace {
@@ -257,8 +258,7 @@ Json BandJson(const bands::Band& b, double scale) {
   return {{"estimate", Vec(b.estimate, scale)}, {"lower", Vec(b.lower, scale)}, {"upper", Vec(b.upper, scale)}};
 }
 
-Json GrainJson(const StudyRun& run, size_t i) {
-  const StudySample& ss = run.study.samples[i];
+Json GrainJson(const StudySample& ss, const std::vector<std::string>& shared_with) {
   const GrainModulusChoice& g = ss.grain;
   Json j;
   if (!g.given) {
@@ -270,7 +270,7 @@ Json GrainJson(const StudyRun& run, size_t i) {
   const double G = units::kGPa;
   j["method"] = std::string(poro::ToString(v.method));
   j["group"] = g.group.empty() ? Json(nullptr) : Json(g.group);
-  j["shared_with"] = detail::SharedWith(run.study, i);
+  j["shared_with"] = shared_with;
   if (g.where.known()) j["given_at"] = g.where.ToString();
   j["unit"] = "GPa unless named";
   j["K_s"] = Number(v.k_s / G);
@@ -369,34 +369,37 @@ Json AlphaJson(const bands::BandResult& b) {
 
 }  // namespace
 
-Json ResultsJson(const StudyRun& run, const std::vector<InputDigest>& inputs, const ReportOptions& options) {
-  const ModelRegistry& registry = options.registry ? *options.registry : ModelRegistry::Builtin();
+Json ResultsJsonHead(const Study& study, const RunMetadata& metadata, const std::vector<InputDigest>& inputs) {
+  const RunMetadata& m = metadata;
   Json j;
   j["caution"] = CautionText();
-  if (IsInventedStudy(run.study)) j["invented_data"] = InventedNotice(run.study);
+  if (IsInventedStudy(study)) j["invented_data"] = InventedNotice(study);
   j["schema"] = "porofit-results";
   j["schema_version"] = kResultsSchemaVersion;
 
   Json prov;
   prov["tool"] = "porofit";
-  prov["tool_version"] = run.metadata.tool_version;
-  prov["build_type"] = run.metadata.build_type;
-  prov["started_utc"] = run.metadata.started_utc;
-  prov["command_line"] = run.metadata.command_line;
-  prov["threads"] = run.metadata.threads;
+  prov["tool_version"] = m.tool_version;
+  prov["build_type"] = m.build_type;
+  prov["started_utc"] = m.started_utc;
+  prov["command_line"] = m.command_line;
+  prov["threads"] = m.threads;
   Json files = Json::array();
   for (const InputDigest& f : inputs) {
     files.push_back({{"path", f.path}, {"role", f.role}, {"sha256", f.sha256}, {"size_bytes", f.size_bytes}});
   }
   prov["input_files"] = files;
-  prov["loader_warnings"] = run.study.warnings;
+  prov["loader_warnings"] = study.warnings;
   j["provenance"] = prov;
 
-  j["study"] = {{"name", run.study.name}, {"description", run.study.description}, {"path", run.study.path}};
+  j["study"] = {{"name", study.name}, {"description", study.description}, {"path", study.path}};
+  return j;
+}
 
-  Json samples = Json::array();
-  for (size_t i = 0; i < run.study.samples.size(); ++i) {
-    const StudySample& ss = run.study.samples[i];
+Json SampleResultsJson(const StudySample& ss, const SampleRun* sr, const std::vector<std::string>& shared_with,
+                       const ReportOptions& options) {
+  const ModelRegistry& registry = options.registry ? *options.registry : ModelRegistry::Builtin();
+  {
     const Sample& s = ss.sample;
     Json js;
     js["id"] = s.id;
@@ -414,16 +417,16 @@ Json ResultsJson(const StudyRun& run, const std::vector<InputDigest>& inputs, co
     js["options"] = OptionsJson(ss.options);
     js["data"] = DataJson(s);
     Json fits = Json::array();
-    if (i < run.samples.size()) {
-      const auto& results = run.samples[i].fits;
+    if (sr != nullptr) {
+      const auto& results = sr->fits;
       for (size_t k = 0; k < results.size() && k < ss.models.size(); ++k) {
         Json fj = FitJson(ss, ss.models[k], results[k], registry);
-        if (k < run.samples[i].bands.size()) fj["alpha"] = AlphaJson(run.samples[i].bands[k]);
+        if (k < sr->bands.size()) fj["alpha"] = AlphaJson(sr->bands[k]);
         fits.push_back(fj);
       }
     }
     js["fits"] = fits;
-    js["grain_modulus"] = GrainJson(run, i);
+    js["grain_modulus"] = GrainJson(ss, shared_with);
     if (ss.fluid) {
       js["fluid_modulus"] = {{"K_f_GPa", Number(ss.fluid->k_f / units::kGPa)},
                              {"sigma_GPa", Number(ss.fluid->sigma / units::kGPa)},
@@ -445,8 +448,8 @@ Json ResultsJson(const StudyRun& run, const std::vector<InputDigest>& inputs, co
                              {"seed", bo.seed}};
     }
     Json vti = Json::array();
-    if (i < run.samples.size()) {
-      for (const VtiAlphaPoint& a : run.samples[i].vti)
+    if (sr != nullptr) {
+      for (const VtiAlphaPoint& a : sr->vti)
         vti.push_back({{"pressure_MPa", Number(a.pressure / units::kMPa)},
                        {"alpha_h", Number(a.alpha_h)},
                        {"sigma_alpha_h", Number(a.sigma_h)},
@@ -460,8 +463,8 @@ Json ResultsJson(const StudyRun& run, const std::vector<InputDigest>& inputs, co
     js["vti_alpha"] = vti;
     if (!ss.vti_fit_model.empty()) {
       Json stiffness_fits = Json::array();
-      if (i < run.samples.size()) {
-        for (const VtiStiffnessFit& f : run.samples[i].vti_fits) {
+      if (sr != nullptr) {
+        for (const VtiStiffnessFit& f : sr->vti_fits) {
           Json params = Json::array();
           for (const ParameterResult& p : f.fit.parameters)
             params.push_back({{"name", p.name}, {"estimate_si", Number(p.estimate)}, {"std_error_si", Number(p.std_error)}});
@@ -475,11 +478,13 @@ Json ResultsJson(const StudyRun& run, const std::vector<InputDigest>& inputs, co
       }
       js["vti_fit"] = {{"model", ss.vti_fit_model}, {"stiffness_fits", stiffness_fits}};
     }
-    samples.push_back(js);
+    return js;
   }
-  j["samples"] = samples;
+}
+
+void AddResultsJsonTail(const Study& study, Json& j) {
   Json overrides = Json::array();
-  for (const poro::Mineral& m : run.study.mineral_overrides)
+  for (const poro::Mineral& m : study.mineral_overrides)
     overrides.push_back({{"name", m.name},
                          {"bulk_GPa", Number(m.bulk / units::kGPa)},
                          {"shear_GPa", Number(m.shear / units::kGPa)},
@@ -491,6 +496,16 @@ Json ResultsJson(const StudyRun& run, const std::vector<InputDigest>& inputs, co
                          {"location", m.where.ToString()}});
   j["mineral_overrides"] = overrides;
   j["alpha_notes"] = {detail::CorrelationCaveat()};
+}
+
+Json ResultsJson(const StudyRun& run, const std::vector<InputDigest>& inputs, const ReportOptions& options) {
+  Json j = ResultsJsonHead(run.study, run.metadata, inputs);
+  Json samples = Json::array();
+  for (size_t i = 0; i < run.study.samples.size(); ++i)
+    samples.push_back(SampleResultsJson(run.study.samples[i], i < run.samples.size() ? &run.samples[i] : nullptr,
+                                        detail::SharedWith(run.study, i), options));
+  j["samples"] = samples;
+  AddResultsJsonTail(run.study, j);
   return j;
 }
 

@@ -1,0 +1,206 @@
+// The report folder written while the study runs (porofit/report/stream.h).
+#include <cmath>
+#include <cstdio>
+#include <fstream>
+#include <map>
+#include <memory>
+#include <sstream>
+
+#include "format.h"
+#include "porofit/report/stream.h"
+
+namespace porofit {
+namespace {
+
+namespace fs = std::filesystem;
+
+// One report file in the staging folder, appended to sample by sample.
+class Appender {
+ public:
+  explicit Appender(const fs::path& path) : path_(path), buffer_(1 << 16) {
+    out_.rdbuf()->pubsetbuf(buffer_.data(), static_cast<std::streamsize>(buffer_.size()));
+    out_.open(path, std::ios::binary | std::ios::trunc);
+    if (!out_) throw OutputError("cannot create '" + path.string() + "'");
+  }
+  std::ostream& out() { return out_; }
+  void Close() {
+    out_.flush();
+    out_.close();
+    if (out_.fail()) throw OutputError("cannot write '" + path_.string() + "' (disk full?)");
+  }
+
+ private:
+  fs::path path_;
+  std::vector<char> buffer_;
+  std::ofstream out_;
+};
+
+// Per-model counts for the summary of a large batch.
+struct ModelTally {
+  size_t fits = 0, converged = 0, flagged = 0, lowest_aicc = 0;
+};
+
+std::string Pad(const std::string& s, size_t w) { return s.size() >= w ? s : s + std::string(w - s.size(), ' '); }
+std::string PadLeft(const std::string& s, size_t w) { return s.size() >= w ? s : std::string(w - s.size(), ' ') + s; }
+
+class StreamWriter {
+ public:
+  StreamWriter(const fs::path& staging, const Study& study, const RunMetadata& meta,
+               const std::vector<InputDigest>& inputs, const StreamReportOptions& options)
+      : staging_(staging), study_(study), meta_(meta), options_(options),
+        parameters_(staging / "parameters.csv"), fits_(staging / "fits.csv"), residuals_(staging / "residuals.csv"),
+        alpha_(staging / "alpha.csv"), grain_(staging / "grain_modulus.csv"), vti_(staging / "alpha_vti.csv"),
+        json_(staging / "results.json") {
+    WriteParametersCsvHeader(study, meta, parameters_.out());
+    WriteFitsCsvHeader(study, meta, fits_.out());
+    WriteResidualsCsvHeader(study, meta, residuals_.out());
+    WriteAlphaCsvHeader(study, meta, alpha_.out());
+    WriteGrainModulusCsvHeader(study, meta, grain_.out());
+    WriteVtiAlphaCsvHeader(study, meta, vti_.out());
+    for (const StudySample& ss : study.samples)
+      if (!ss.grain.group.empty()) groups_[ss.grain.group].push_back(ss.sample.id);
+
+    // results.json: everything but the samples is known now; the samples go
+    // where the placeholder is, in the layout nlohmann's dump(2) gives them.
+    nlohmann::ordered_json j = ResultsJsonHead(study, meta, inputs);
+    const std::string placeholder = "porofit-samples-placeholder-7f3a";
+    j["samples"] = placeholder;
+    AddResultsJsonTail(study, j);
+    const std::string text = Dump(j) + "\n";
+    const std::string marker = "\n  \"samples\": \"" + placeholder + "\"";
+    const size_t at = text.find(marker);
+    POROFIT_CHECK(at != std::string::npos, "results.json placeholder not found");
+    json_.out() << text.substr(0, at + marker.size() - placeholder.size() - 2);
+    json_tail_ = text.substr(at + marker.size());
+  }
+
+  void Add(size_t i, const SampleRun& sr) {
+    const StudySample& ss = study_.samples[i];
+    WriteParametersCsvRows(ss, sr, parameters_.out());
+    WriteFitsCsvRows(ss, sr, fits_.out());
+    WriteResidualsCsvRows(ss, sr, residuals_.out());
+    WriteAlphaCsvRows(ss, sr, alpha_.out());
+    const std::vector<std::string> shared = SharedWith(ss);
+    WriteGrainModulusCsvRow(ss, shared, grain_.out());
+    WriteVtiAlphaCsvRows(ss, sr, vti_.out());
+    std::string block = Dump(SampleResultsJson(ss, &sr, shared, options_.report));
+    std::string indented = "    ";
+    indented.reserve(block.size() + block.size() / 8);
+    for (char c : block) {
+      indented += c;
+      if (c == '\n') indented += "    ";
+    }
+    json_.out() << (i == 0 ? "[\n" : ",\n") << indented;
+    ++written_;
+
+    counts_.Add(ss, sr);
+    if (i < options_.summary_sample_limit) {
+      std::ostringstream s;
+      WriteSummarySample(ss, sr, s);
+      blocks_ += s.str();
+    }
+    Tally(ss, sr);
+  }
+
+  std::string Finish() {
+    json_.out() << (written_ == 0 ? "[]" : "\n  ]") << json_tail_;
+    for (Appender* a : {&parameters_, &fits_, &residuals_, &alpha_, &grain_, &vti_, &json_}) a->Close();
+    std::ostringstream s;
+    WriteSummaryHead(study_, meta_, counts_, s);
+    s << blocks_;
+    if (study_.samples.size() > options_.summary_sample_limit) AggregateBlock(s);
+    WriteSummaryFoot(study_, s);
+    WriteFileDurably(staging_ / "summary.txt", s.str());
+    return s.str();
+  }
+
+ private:
+  static std::string Dump(const nlohmann::ordered_json& j) {
+    return j.dump(2, ' ', false, nlohmann::ordered_json::error_handler_t::replace);
+  }
+
+  std::vector<std::string> SharedWith(const StudySample& ss) const {
+    std::vector<std::string> out;
+    if (ss.grain.group.empty()) return out;
+    for (const std::string& id : groups_.at(ss.grain.group))
+      if (id != ss.sample.id) out.push_back(id);
+    return out;
+  }
+
+  void Tally(const StudySample& ss, const SampleRun& sr) {
+    const FitResult* best = nullptr;
+    for (const FitResult& r : sr.fits) {
+      auto it = tally_index_.find(r.model_id);
+      if (it == tally_index_.end()) {
+        it = tally_index_.emplace(r.model_id, tally_.size()).first;
+        tally_.emplace_back(r.model_id, ModelTally{});
+      }
+      ModelTally& t = tally_[it->second].second;
+      ++t.fits;
+      t.converged += r.status == FitStatus::kConverged ? 1 : 0;
+      t.flagged += detail::FitFlags(r, ss.options).empty() ? 0 : 1;
+      if (r.status == FitStatus::kConverged && std::isfinite(r.aicc) && (best == nullptr || r.aicc < best->aicc))
+        best = &r;
+      if (r.status != FitStatus::kConverged && failed_.size() < 10)
+        failed_.push_back(ss.sample.id + " (" + r.model_id + ": " + std::string(ToString(r.status)) + ")");
+      if (r.status != FitStatus::kConverged) ++n_failed_;
+    }
+    if (best != nullptr) ++tally_[tally_index_.at(best->model_id)].second.lowest_aicc;
+  }
+
+  void AggregateBlock(std::ostream& out) const {
+    const size_t shown = options_.summary_sample_limit, n = study_.samples.size();
+    out << "\n" << (n - shown) << " more samples are not shown one by one (summary limit " << shown
+        << "); every sample's results are in fits.csv, parameters.csv, residuals.csv and results.json.\n";
+    out << "\nAll " << n << " samples, per model:\n";
+    out << "  " << Pad("model", 15) << PadLeft("fits", 8) << PadLeft("converged", 11) << PadLeft("flagged", 9)
+        << PadLeft("lowest AICc", 13) << "\n";
+    for (const auto& [model, t] : tally_)
+      out << "  " << Pad(model, 15) << PadLeft(std::to_string(t.fits), 8) << PadLeft(std::to_string(t.converged), 11)
+          << PadLeft(std::to_string(t.flagged), 9) << PadLeft(std::to_string(t.lowest_aicc), 13) << "\n";
+    if (n_failed_ > 0) {
+      out << "  " << n_failed_ << " fits did not converge; first: " << detail::Join(failed_, ", ")
+          << (n_failed_ > failed_.size() ? ", ..." : "") << "\n";
+    }
+  }
+
+  fs::path staging_;
+  const Study& study_;
+  const RunMetadata& meta_;
+  StreamReportOptions options_;
+  Appender parameters_, fits_, residuals_, alpha_, grain_, vti_, json_;
+  std::string json_tail_;
+  size_t written_ = 0;
+  std::map<std::string, std::vector<std::string>> groups_;
+  SummaryCounts counts_;
+  std::string blocks_;
+  std::vector<std::pair<std::string, ModelTally>> tally_;  // first-seen order
+  std::map<std::string, size_t> tally_index_;
+  std::vector<std::string> failed_;
+  size_t n_failed_ = 0;
+};
+
+}  // namespace
+
+StreamReportResult RunAndWriteReportFolder(const Study& study, const RunOptions& run_options,
+                                           const std::filesystem::path& folder,
+                                           const AtomicFolderOptions& folder_options,
+                                           const StreamReportOptions& options, const StreamOptions& stream) {
+  // Digest before writing anything: an unreadable input stops the run with
+  // nothing on disk.
+  const std::vector<InputDigest> inputs = DigestInputs(study);
+  StreamReportResult result;
+  result.metadata = StartRunMetadata(run_options);
+  WriteFolderAtomically(
+      folder,
+      [&](const fs::path& staging) {
+        StreamWriter writer(staging, study, result.metadata, inputs, options);
+        RunStudyStreaming(
+            study, run_options, [&](size_t i, SampleRun&& sr) { writer.Add(i, sr); }, stream, &result.metadata);
+        result.summary = writer.Finish();
+      },
+      folder_options);
+  return result;
+}
+
+}  // namespace porofit
