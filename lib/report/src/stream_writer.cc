@@ -4,6 +4,7 @@
 #include <fstream>
 #include <map>
 #include <memory>
+#include <mutex>
 #include <sstream>
 
 #include "format.h"
@@ -74,24 +75,37 @@ class StreamWriter {
     json_tail_ = text.substr(at + marker.size());
   }
 
+  // Formats sample i's rows of every file. Thread-safe (reads only the
+  // study and the sample's results), so the workers call it in parallel
+  // through StreamOptions::prepare.
+  void Render(size_t i, const SampleRun& sr) {
+    Rendered r = RenderNow(i, sr);
+    std::lock_guard<std::mutex> lock(mu_);
+    rendered_[i] = std::move(r);
+  }
+
   void Add(size_t i, const SampleRun& sr) {
-    const StudySample& ss = study_.samples[i];
-    WriteParametersCsvRows(ss, sr, parameters_.out());
-    WriteFitsCsvRows(ss, sr, fits_.out());
-    WriteResidualsCsvRows(ss, sr, residuals_.out());
-    WriteAlphaCsvRows(ss, sr, alpha_.out());
-    const std::vector<std::string> shared = SharedWith(ss);
-    WriteGrainModulusCsvRow(ss, shared, grain_.out());
-    WriteVtiAlphaCsvRows(ss, sr, vti_.out());
-    std::string block = Dump(SampleResultsJson(ss, &sr, shared, options_.report));
-    std::string indented = "    ";
-    indented.reserve(block.size() + block.size() / 8);
-    for (char c : block) {
-      indented += c;
-      if (c == '\n') indented += "    ";
+    Rendered r;
+    {
+      std::unique_lock<std::mutex> lock(mu_);
+      auto it = rendered_.find(i);
+      if (it != rendered_.end()) {
+        r = std::move(it->second);
+        rendered_.erase(it);
+      } else {
+        lock.unlock();
+        r = RenderNow(i, sr);
+      }
     }
-    json_.out() << (i == 0 ? "[\n" : ",\n") << indented;
+    parameters_.out() << r.parameters;
+    fits_.out() << r.fits;
+    residuals_.out() << r.residuals;
+    alpha_.out() << r.alpha;
+    grain_.out() << r.grain;
+    vti_.out() << r.vti;
+    json_.out() << (i == 0 ? "[\n" : ",\n") << r.json;
     ++written_;
+    const StudySample& ss = study_.samples[i];
 
     counts_.Add(ss, sr);
     if (i < options_.summary_sample_limit) {
@@ -115,6 +129,35 @@ class StreamWriter {
   }
 
  private:
+  struct Rendered {
+    std::string parameters, fits, residuals, alpha, grain, vti, json;
+  };
+
+  Rendered RenderNow(size_t i, const SampleRun& sr) const {
+    const StudySample& ss = study_.samples[i];
+    Rendered r;
+    auto text = [&](auto&& write) {
+      std::ostringstream s;
+      write(s);
+      return s.str();
+    };
+    r.parameters = text([&](std::ostream& o) { WriteParametersCsvRows(ss, sr, o); });
+    r.fits = text([&](std::ostream& o) { WriteFitsCsvRows(ss, sr, o); });
+    r.residuals = text([&](std::ostream& o) { WriteResidualsCsvRows(ss, sr, o); });
+    r.alpha = text([&](std::ostream& o) { WriteAlphaCsvRows(ss, sr, o); });
+    const std::vector<std::string> shared = SharedWith(ss);
+    r.grain = text([&](std::ostream& o) { WriteGrainModulusCsvRow(ss, shared, o); });
+    r.vti = text([&](std::ostream& o) { WriteVtiAlphaCsvRows(ss, sr, o); });
+    const std::string block = Dump(SampleResultsJson(ss, &sr, shared, options_.report));
+    r.json.reserve(block.size() + block.size() / 8 + 4);
+    r.json = "    ";
+    for (char c : block) {
+      r.json += c;
+      if (c == '\n') r.json += "    ";
+    }
+    return r;
+  }
+
   static std::string Dump(const nlohmann::ordered_json& j) {
     return j.dump(2, ' ', false, nlohmann::ordered_json::error_handler_t::replace);
   }
@@ -170,6 +213,8 @@ class StreamWriter {
   StreamReportOptions options_;
   Appender parameters_, fits_, residuals_, alpha_, grain_, vti_, json_;
   std::string json_tail_;
+  std::mutex mu_;
+  std::map<size_t, Rendered> rendered_;  // formatted by workers, waiting for their turn
   size_t written_ = 0;
   std::map<std::string, std::vector<std::string>> groups_;
   SummaryCounts counts_;
@@ -195,8 +240,14 @@ StreamReportResult RunAndWriteReportFolder(const Study& study, const RunOptions&
       folder,
       [&](const fs::path& staging) {
         StreamWriter writer(staging, study, result.metadata, inputs, options);
+        StreamOptions with_render = stream;
+        with_render.prepare = [&](size_t i, const SampleRun& sr) {
+          if (stream.prepare) stream.prepare(i, sr);
+          writer.Render(i, sr);
+        };
         RunStudyStreaming(
-            study, run_options, [&](size_t i, SampleRun&& sr) { writer.Add(i, sr); }, stream, &result.metadata);
+            study, run_options, [&](size_t i, SampleRun&& sr) { writer.Add(i, sr); }, with_render,
+            &result.metadata);
         result.summary = writer.Finish();
       },
       folder_options);

@@ -38,7 +38,9 @@ void RunStudyStreaming(const Study& study, const RunOptions& options, const Samp
 
   if (workers <= 1) {
     for (size_t i = 0; i < n; ++i) {
-      sink(i, RunSample(study.samples[i], registry));
+      SampleRun r = RunSample(study.samples[i], registry);
+      if (stream.prepare) stream.prepare(i, r);
+      sink(i, std::move(r));
       done(i);
     }
   } else {
@@ -65,6 +67,7 @@ void RunStudyStreaming(const Study& study, const RunOptions& options, const Samp
         std::optional<SampleRun> r;
         try {
           r = RunSample(study.samples[i], registry);
+          if (stream.prepare) stream.prepare(i, *r);
         } catch (...) {
           std::lock_guard<std::mutex> lock(mu);
           if (!worker_error) worker_error = std::current_exception();

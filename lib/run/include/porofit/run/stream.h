@@ -27,6 +27,11 @@ struct StreamOptions {
   /// Called on the calling thread after the sink took sample `done - 1`:
   /// (samples done, total). May be empty.
   std::function<void(size_t done, size_t total)> progress;
+  /// Called on the worker thread that computed sample `index` (the calling
+  /// thread with one thread), before the sample waits for its turn: lets the
+  /// sink's heavy work, such as formatting the sample's output rows, run in
+  /// parallel. Must be thread-safe. May be empty.
+  std::function<void(size_t index, const SampleRun& run)> prepare;
 };
 
 /// Receives sample `index` (0-based, strictly increasing) of the study.
