@@ -414,6 +414,11 @@ Json SampleResultsJson(const StudySample& ss, const SampleRun* sr, const std::ve
     js["effective_pressure_coefficient"] = Number(s.effective_pressure_coefficient);
     js["sigma_absolute"] = s.sigma_absolute;
     js["weighted"] = IsWeighted(s);
+    if (!ss.fields.empty()) {  // extra sample_table columns, only for batch samples
+      Json fields = Json::object();
+      for (const auto& [name, value] : ss.fields) fields[name] = value;
+      js["fields"] = fields;
+    }
     js["options"] = OptionsJson(ss.options);
     js["data"] = DataJson(s);
     Json fits = Json::array();
