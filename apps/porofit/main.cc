@@ -12,8 +12,11 @@
 #include <boost/program_options.hpp>
 #include <glog/logging.h>
 
+#include <unistd.h>
+
 #include <cctype>
 #include <cstdlib>
+#include <optional>
 #include <filesystem>
 #include <iostream>
 #include <string>
@@ -24,6 +27,8 @@
 #include "porofit/models/describe.h"
 #include "porofit/models/registry.h"
 #include "porofit/report/report.h"
+#include "porofit/report/stream.h"
+#include "porofit/run/progress.h"
 #include "porofit/run/run.h"
 #include "porofit/version.h"
 
@@ -102,12 +107,15 @@ int CmdFit(const std::vector<std::string>& args, const std::string& command_line
   po::options_description opts("porofit fit STUDY.yaml --out DIR [options]");
   std::string study_path, out_dir;
   int threads = 1;
+  int summary_limit = 100;
   opts.add_options()
       ("help,h", "show this help")
       ("out,o", po::value<std::string>(&out_dir)->required(), "output folder to create (must not exist)")
       ("overwrite", "replace the output folder if it exists (atomically)")
       ("threads,j", po::value<int>(&threads)->default_value(1), "worker threads over samples (>= 1); output does not depend on it")
-      ("quiet,q", "print no summary, only errors");
+      ("summary-limit", po::value<int>(&summary_limit)->default_value(100),
+       "samples shown one by one in the summary; beyond, counts per model (full results are in the files)")
+      ("quiet,q", "print no summary and no progress, only errors");
   po::options_description hidden;
   hidden.add_options()("study", po::value<std::string>(&study_path)->required(), "study file");
   po::options_description all;
@@ -126,6 +134,7 @@ int CmdFit(const std::vector<std::string>& args, const std::string& command_line
   }
   const po::variables_map vm = Parse(args, all, pos);
   if (threads < 1) throw UsageError{"--threads = " + std::to_string(threads) + " must be at least 1"};
+  if (summary_limit < 0) throw UsageError{"--summary-limit = " + std::to_string(summary_limit) + " must be >= 0"};
   const bool overwrite = vm.count("overwrite") > 0;
   const bool quiet = vm.count("quiet") > 0;
   const std::string timestamp = FixedTimestamp();
@@ -141,14 +150,24 @@ int CmdFit(const std::vector<std::string>& args, const std::string& command_line
   ro.threads = threads;
   ro.command_line = command_line;
   ro.timestamp_utc = timestamp;
-  const porofit::StudyRun run = porofit::RunStudy(study, ro);
 
+  // Samples are written to the output folder as they finish (bounded memory);
+  // progress on stderr: a bar on a terminal, occasional lines otherwise.
   porofit::AtomicFolderOptions fo;
   fo.overwrite = overwrite;
-  porofit::WriteReportFolder(run, out_dir, fo);
+  porofit::StreamReportOptions so;
+  so.summary_sample_limit = static_cast<size_t>(summary_limit);
+  porofit::StreamOptions stream;
+  std::optional<porofit::ProgressMeter> meter;
+  if (!quiet) {
+    meter.emplace(std::cerr, ::isatty(STDERR_FILENO) != 0, study.samples.size());
+    stream.progress = [&](size_t done, size_t) { meter->Update(done); };
+  }
+  const porofit::StreamReportResult result = porofit::RunAndWriteReportFolder(study, ro, out_dir, fo, so, stream);
+  if (meter) meter->Finish();
 
   if (!quiet) {
-    porofit::WriteSummary(run, std::cout);
+    std::cout << result.summary;
     std::cout << "\nwrote";
     const auto names = porofit::ReportFileNames();
     for (size_t i = 0; i < names.size(); ++i) std::cout << (i ? ", " : " ") << names[i];

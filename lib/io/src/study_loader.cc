@@ -21,6 +21,7 @@
 #include "study_comparison.h"
 #include "study_user_models.h"
 #include "strain_columns.h"
+#include "study_batch.h"
 #include "yaml_map.h"
 
 namespace porofit {
@@ -842,7 +843,8 @@ Study Loader::Parse(std::string_view text) {
   Field version = top.Get("version"), name = top.Get("name"), description = top.Get("description"),
         defaults = top.Get("defaults"), samples = top.Get("samples"), minerals = top.Get("minerals"),
         grain_moduli = top.Get("grain_moduli"), branch_tests = top.Get("branch_tests"),
-        joint_fits = top.Get("joint_fits"), user_models = top.Get("user_models");
+        joint_fits = top.Get("joint_fits"), user_models = top.Get("user_models"),
+        sample_table = top.Get("sample_table");
   Field comparison = top.Get("comparison");
   top.Finish();
   if (version && version.Integer() != 1)
@@ -894,17 +896,25 @@ Study Loader::Parse(std::string_view text) {
   }
 
   if (comparison) io::detail::ReadComparison(comparison, file_, study_.comparison);
-  if (!samples) throw InputError(top.at(), "missing required key 'samples' in the study");
-  samples.ExpectList();
-  if (samples.node.size() == 0) throw InputError(samples.at, "'samples' is empty: the study has no samples");
-  const YAML::Node& list = samples.node;
-  for (size_t i = 0; i < list.size(); ++i) ReadSample(list[i], i);
+  if (!samples && !sample_table) throw InputError(top.at(), "missing required key 'samples' in the study");
+  if (samples) {
+    samples.ExpectList();
+    if (samples.node.size() == 0) throw InputError(samples.at, "'samples' is empty: the study has no samples");
+    const YAML::Node& list = samples.node;
+    for (size_t i = 0; i < list.size(); ++i) ReadSample(list[i], i);
+  }
+  if (sample_table) {  // the batch form (study_batch.cc)
+    io::detail::BatchDefaults b{&default_models_, defaults_fit_.options, defaults_fit_.scale_covariance,
+                                defaults_fit_.scale_covariance_at, default_bands_, &groups_, any_grain_};
+    io::detail::ReadSampleTable(sample_table, file_, *registry_, b, study_);
+  }
   if (joint_fits)
     study_.joint_fits = io::detail::ReadJointFits(
         joint_fits, file_, study_.samples, *registry_,
         [&](const YAML::Node& n, const std::string& p) { return ReadModelChoice(n, file_, p, *registry_); });
+
   if (any_grain_) {
-    for (size_t i = 0; i < study_.samples.size(); ++i)
+    for (size_t i = 0; i < wrote_grain_.size(); ++i)
       if (!wrote_grain_[i])
         throw InputError(study_.samples[i].sample.where,
                          "sample " + Quote(study_.samples[i].sample.id) +

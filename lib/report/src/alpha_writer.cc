@@ -5,6 +5,7 @@
 #include "format.h"
 #include "porofit/core/units.h"
 #include "porofit/report/report.h"
+#include "porofit/report/stream.h"
 
 namespace porofit {
 using detail::CsvField;
@@ -47,10 +48,10 @@ double At(const std::vector<double>& v, size_t i) { return i < v.size() ? v[i] :
 
 }  // namespace
 
-void WriteAlphaCsv(const StudyRun& run, std::ostream& out) {
+void WriteAlphaCsvHeader(const Study& study, const RunMetadata& meta, std::ostream& out) {
   out << detail::CsvPreamble(
       "Biot coefficient alpha = 1 - K_dry/K_s with bands, one row per sample, model, method and grid pressure",
-      run.study, run.metadata.started_utc, run.metadata.tool_version,
+      study, meta.started_utc, meta.tool_version,
       {"pressure_MPa is the differential pressure; K in GPa; alpha, B and ks_variance_share are dimensionless (1)",
        "method delta: K_lo/K_hi and alpha_conf_* are pointwise confidence bands, alpha_pred_* prediction bands "
        "(a new measurement), alpha_simul_* whole-curve (Working-Hotelling/Scheffe) bands; M, K_u, B and "
@@ -63,10 +64,12 @@ void WriteAlphaCsv(const StudyRun& run, std::ostream& out) {
   out << "sample,model,method,pressure_MPa,K_GPa,K_lo_GPa,K_hi_GPa,alpha,alpha_conf_lo,alpha_conf_hi,alpha_pred_lo,"
          "alpha_pred_hi,alpha_simul_lo,alpha_simul_hi,ks_variance_share,M_GPa,M_lo_GPa,M_hi_GPa,K_u_GPa,K_u_lo_GPa,"
          "K_u_hi_GPa,B,B_lo,B_hi,flags\n";
+}
+
+void WriteAlphaCsvRows(const StudySample& ss, const SampleRun& sr, std::ostream& out) {
   const double G = units::kGPa, M = units::kMPa;
-  for (size_t i = 0; i < run.study.samples.size() && i < run.samples.size(); ++i) {
-    const Sample& s = run.study.samples[i].sample;
-    const SampleRun& sr = run.samples[i];
+  {
+    const Sample& s = ss.sample;
     for (size_t k = 0; k < sr.bands.size() && k < sr.fits.size(); ++k) {
       const bands::BandResult& b = sr.bands[k];
       if (!b.computed) continue;
@@ -111,10 +114,15 @@ void WriteAlphaCsv(const StudyRun& run, std::ostream& out) {
   }
 }
 
-void WriteGrainModulusCsv(const StudyRun& run, std::ostream& out) {
+void WriteAlphaCsv(const StudyRun& run, std::ostream& out) {
+  WriteAlphaCsvHeader(run.study, run.metadata, out);
+  for (size_t i = 0; i < run.study.samples.size() && i < run.samples.size(); ++i)
+    WriteAlphaCsvRows(run.study.samples[i], run.samples[i], out);
+}
+
+void WriteGrainModulusCsvHeader(const Study& study, const RunMetadata& meta, std::ostream& out) {
   out << detail::CsvPreamble(
-      "grain modulus K_s per sample, with its derivation", run.study, run.metadata.started_utc,
-      run.metadata.tool_version,
+      "grain modulus K_s per sample, with its derivation", study, meta.started_utc, meta.tool_version,
       {"moduli in GPa; fractions dimensionless; method none = the study gives this sample no K_s (no alpha); "
        "mineralogy: K_s = Hill average, sigma_K_s^2 = sigma_spread^2 + sigma_table^2 with sigma_spread = "
        "(Voigt - Reuss)/(2 sqrt 3); blank = not applicable",
@@ -123,9 +131,11 @@ void WriteGrainModulusCsv(const StudyRun& run, std::ostream& out) {
   out << "sample,group,method,K_s_GPa,sigma_K_s_GPa,sigma_spread_GPa,sigma_table_GPa,K_voigt_GPa,K_reuss_GPa,"
          "K_hill_GPa,K_hs_lower_GPa,K_hs_upper_GPa,mu_s_GPa,sigma_mu_s_GPa,clay_volume_fraction,basis,composition,"
          "K_f_GPa,sigma_K_f_GPa,shared_with,sources\n";
+}
+
+void WriteGrainModulusCsvRow(const StudySample& ss, const std::vector<std::string>& shared_with, std::ostream& out) {
   const double G = units::kGPa;
-  for (size_t i = 0; i < run.study.samples.size(); ++i) {
-    const StudySample& ss = run.study.samples[i];
+  {
     const GrainModulusChoice& g = ss.grain;
     const poro::GrainModulus& v = g.value;
     const bool mineral = g.given && v.method == poro::GrainModulusMethod::kMineralogy;
@@ -141,16 +151,22 @@ void WriteGrainModulusCsv(const StudyRun& run, std::ostream& out) {
                    mineral ? Num(v.clay_volume_fraction) : std::string(),
                    mineral ? std::string(poro::ToString(g.basis)) : std::string(), CsvField(detail::Join(comp, "; ")),
                    ss.fluid ? Num(ss.fluid->k_f / G) : std::string(), ss.fluid ? Num(ss.fluid->sigma / G) : std::string(),
-                   CsvField(detail::Join(detail::SharedWith(run.study, i), ";")),
+                   CsvField(detail::Join(shared_with, ";")),
                    CsvField(detail::Join(g.sources, " | "))});
   }
 }
 
-void WriteVtiAlphaCsv(const StudyRun& run, std::ostream& out) {
+void WriteGrainModulusCsv(const StudyRun& run, std::ostream& out) {
+  WriteGrainModulusCsvHeader(run.study, run.metadata, out);
+  for (size_t i = 0; i < run.study.samples.size(); ++i)
+    WriteGrainModulusCsvRow(run.study.samples[i], detail::SharedWith(run.study, i), out);
+}
+
+void WriteVtiAlphaCsvHeader(const Study& study, const RunMetadata& meta, std::ostream& out) {
   out << detail::CsvPreamble(
       "anisotropic (VTI) Biot coefficients per given pressure: alpha_h = 1 - (C11 + C12 + C13)/(3 K_s), "
       "alpha_v = 1 - (2 C13 + C33)/(3 K_s)",
-      run.study, run.metadata.started_utc, run.metadata.tool_version,
+      study, meta.started_utc, meta.tool_version,
       {"one row per row of a sample's vti_stiffness table (source = table; stiffnesses in GPa as given, drained, "
        "static; sigma_* are 1-sigma from sigma_K_s only), then, with vti_stiffness.fit, one row per table pressure "
        "from the fitted stiffness curves (source = fitted) and one row per pressure of the sample's band grid "
@@ -159,15 +175,23 @@ void WriteVtiAlphaCsv(const StudyRun& run, std::ostream& out) {
        detail::CorrelationCaveat()});
   out << "sample,pressure_MPa,C11_GPa,C12_GPa,C13_GPa,C33_GPa,K_s_GPa,alpha_h,sigma_alpha_h,alpha_v,sigma_alpha_v,"
          "flags,source\n";
-  for (size_t i = 0; i < run.study.samples.size() && i < run.samples.size(); ++i) {
-    const StudySample& ss = run.study.samples[i];
-    for (const VtiAlphaPoint& a : run.samples[i].vti) {
+}
+
+void WriteVtiAlphaCsvRows(const StudySample& ss, const SampleRun& sr, std::ostream& out) {
+  {
+    for (const VtiAlphaPoint& a : sr.vti) {
       out << CsvRow({CsvField(ss.sample.id), Num(a.pressure / units::kMPa), Num(a.c11 / units::kGPa),
                      Num(a.c12 / units::kGPa), Num(a.c13 / units::kGPa), Num(a.c33 / units::kGPa),
                      Num(ss.grain.value.k_s / units::kGPa), Num(a.alpha_h), Num(a.sigma_h), Num(a.alpha_v),
                      Num(a.sigma_v), a.extrapolated ? "extrapolated" : "", CsvField(a.source)});
     }
   }
+}
+
+void WriteVtiAlphaCsv(const StudyRun& run, std::ostream& out) {
+  WriteVtiAlphaCsvHeader(run.study, run.metadata, out);
+  for (size_t i = 0; i < run.study.samples.size() && i < run.samples.size(); ++i)
+    WriteVtiAlphaCsvRows(run.study.samples[i], run.samples[i], out);
 }
 
 }  // namespace porofit

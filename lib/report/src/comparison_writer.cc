@@ -7,6 +7,7 @@
 #include <cstdio>
 
 #include "format.h"
+#include "porofit/report/stream.h"
 #include "porofit/core/units.h"
 #include "porofit/report/report.h"
 
@@ -72,10 +73,9 @@ std::string Joined(const std::vector<std::string>& v, const std::string& sep) { 
 
 }  // namespace
 
-void WriteComparisonCsv(const StudyRun& run, std::ostream& out) {
+void WriteComparisonCsvHeader(const Study& study, const RunMetadata& meta, std::ostream& out) {
   out << detail::CsvPreamble(
-      "model comparison, one row per sample and model", run.study, run.metadata.started_utc,
-      run.metadata.tool_version,
+      "model comparison, one row per sample and model", study, meta.started_utc, meta.tool_version,
       {"aic, aicc, bic and their delta_* are dimensionless (Gaussian log-likelihood, constants shared by the "
        "sample's models dropped); weight_* are Akaike weights (dimensionless, sum 1 over the included models); "
        "k counts the free parameters plus the noise variance when it is estimated; rank by `criterion`, 1 = best; "
@@ -88,14 +88,17 @@ void WriteComparisonCsv(const StudyRun& run, std::ostream& out) {
          "loo_rmse_GPa,loo_mean_error_GPa,loo_rms_standardized,loo_refits,loo_refits_failed,loo_rank,loo_note,"
          "holdout_points,holdout_rmse_GPa,holdout_mean_error_GPa,holdout_rms_standardized,holdout_refits,"
          "holdout_refits_failed,holdout_points_predicted,holdout_rank,holdout_note\n";
-  const int h = run.study.comparison.cross_validation.holdout_points;
-  for (size_t i = 0; i < run.study.samples.size() && i < run.samples.size(); ++i) {
-    const Sample& s = run.study.samples[i].sample;
-    const compare::SampleComparison& c = run.samples[i].comparison;
+}
+
+void WriteComparisonCsvRows(const Study& study, const StudySample& ss, const SampleRun& sr, std::ostream& out) {
+  const int h = study.comparison.cross_validation.holdout_points;
+  {
+    const Sample& s = ss.sample;
+    const compare::SampleComparison& c = sr.comparison;
     for (size_t k = 0; k < c.models.size(); ++k) {
       const compare::ModelScore& m = c.models[k];
       const std::string status =
-          k < run.samples[i].fits.size() ? std::string(ToString(run.samples[i].fits[k].status)) : std::string();
+          k < sr.fits.size() ? std::string(ToString(sr.fits[k].status)) : std::string();
       std::vector<std::string> row{CsvField(s.id), CsvField(s.lithology), std::string(ToString(s.kind)),
                                    std::string(ToString(s.branch)), std::to_string(s.cycle), CsvField(m.model_id),
                                    status, m.included ? "true" : "false", CsvField(m.excluded_reason),
@@ -112,17 +115,19 @@ void WriteComparisonCsv(const StudyRun& run, std::ostream& out) {
   }
 }
 
-void WriteNestedTestsCsv(const StudyRun& run, std::ostream& out) {
+void WriteNestedTestsCsvHeader(const Study& study, const RunMetadata& meta, std::ostream& out) {
   out << detail::CsvPreamble(
-      "nested F tests, one row per sample and pair of models", run.study, run.metadata.started_utc,
-      run.metadata.tool_version,
+      "nested F tests, one row per sample and pair of models", study, meta.started_utc, meta.tool_version,
       {"F = [(SSR_restricted - SSR_fuller)/df1] / [SSR_fuller/df2] (dimensionless), df1 = p_fuller - "
        "p_restricted, df2 = n - p_fuller; p_value = P(F(df1, df2) >= F); critical = F quantile at `level`; "
        "tested only for regular nestings (relation = regular); otherwise `reason` says why; blank = not computed"});
   out << "sample,restricted,fuller,relation,restriction,tested,F,df1,df2,p_value,critical,level,decision,reason\n";
-  for (size_t i = 0; i < run.study.samples.size() && i < run.samples.size(); ++i) {
-    const Sample& s = run.study.samples[i].sample;
-    const compare::SampleComparison& c = run.samples[i].comparison;
+}
+
+void WriteNestedTestsCsvRows(const StudySample& ss, const SampleRun& sr, std::ostream& out) {
+  {
+    const Sample& s = ss.sample;
+    const compare::SampleComparison& c = sr.comparison;
     for (const compare::NestedTest& t : c.tests) {
       out << CsvRow({CsvField(s.id), CsvField(t.restricted), CsvField(t.fuller),
                      std::string(compare::ToString(t.kind)), CsvField(t.restriction), t.tested ? "true" : "false",
@@ -132,6 +137,18 @@ void WriteNestedTestsCsv(const StudyRun& run, std::ostream& out) {
                      CsvField(t.reason)});
     }
   }
+}
+
+void WriteComparisonCsv(const StudyRun& run, std::ostream& out) {
+  WriteComparisonCsvHeader(run.study, run.metadata, out);
+  for (size_t i = 0; i < run.study.samples.size() && i < run.samples.size(); ++i)
+    WriteComparisonCsvRows(run.study, run.study.samples[i], run.samples[i], out);
+}
+
+void WriteNestedTestsCsv(const StudyRun& run, std::ostream& out) {
+  WriteNestedTestsCsvHeader(run.study, run.metadata, out);
+  for (size_t i = 0; i < run.study.samples.size() && i < run.samples.size(); ++i)
+    WriteNestedTestsCsvRows(run.study.samples[i], run.samples[i], out);
 }
 
 void WriteComparisonGroupsCsv(const StudyRun& run, std::ostream& out) {

@@ -3,6 +3,7 @@
 #include "format.h"
 #include "porofit/core/units.h"
 #include "porofit/report/report.h"
+#include "porofit/report/stream.h"
 
 namespace porofit {
 using detail::CsvField;
@@ -31,18 +32,20 @@ std::string AtBound(const ParameterResult& p) {
 
 }  // namespace
 
-void WriteParametersCsv(const StudyRun& run, std::ostream& out) {
+void WriteParametersCsvHeader(const Study& study, const RunMetadata& meta, std::ostream& out) {
   out << detail::CsvPreamble(
-      "fitted parameters, one row per sample, model and parameter", run.study, run.metadata.started_utc,
-      run.metadata.tool_version,
+      "fitted parameters, one row per sample, model and parameter", study, meta.started_utc, meta.tool_version,
       {"estimate, std_error, lower and upper are in the row's unit (the model's working unit); "
        "std_error is 1 standard error (0 for fixed parameters); blank = not computed; "
        "rel_std_error_percent = 100 std_error/|estimate|; at_bound = lower|upper when the estimate sits on a bound"});
   out << "sample,lithology,kind,branch,cycle,model,status,parameter,unit,estimate,std_error,"
          "rel_std_error_percent,lower,upper,fixed,at_bound\n";
-  for (size_t i = 0; i < run.study.samples.size() && i < run.samples.size(); ++i) {
-    const Sample& s = run.study.samples[i].sample;
-    for (const FitResult& r : run.samples[i].fits) {
+}
+
+void WriteParametersCsvRows(const StudySample& ss, const SampleRun& sr, std::ostream& out) {
+  const Sample& s = ss.sample;
+  {
+    for (const FitResult& r : sr.fits) {
       const bool has = HasStatistics(r);
       for (const ParameterResult& p : r.parameters) {
         const double f = p.si_factor;
@@ -59,21 +62,28 @@ void WriteParametersCsv(const StudyRun& run, std::ostream& out) {
   }
 }
 
-void WriteFitsCsv(const StudyRun& run, std::ostream& out) {
+void WriteParametersCsv(const StudyRun& run, std::ostream& out) {
+  WriteParametersCsvHeader(run.study, run.metadata, out);
+  for (size_t i = 0; i < run.study.samples.size() && i < run.samples.size(); ++i)
+    WriteParametersCsvRows(run.study.samples[i], run.samples[i], out);
+}
+
+void WriteFitsCsvHeader(const Study& study, const RunMetadata& meta, std::ostream& out) {
   out << detail::CsvPreamble(
-      "fit statistics, one row per sample and model", run.study, run.metadata.started_utc,
-      run.metadata.tool_version,
+      "fit statistics, one row per sample and model", study, meta.started_utc, meta.tool_version,
       {"ssr = sum of squared weighted residuals, in ssr_unit (1 when every point has a sigma, GPa^2 when "
        "unweighted); chi2_reduced = ssr/dof; rmse_GPa from raw residuals; aic, aicc, bic from the Gaussian "
        "log-likelihood; flags separated by ';' (see docs/outputs.md); blank = not computed; strain samples: "
        "ssr of strain residuals (strain^2 when unweighted), rmse_GPa blank (rmse_strain in results.json)"});
   out << "sample,lithology,kind,branch,cycle,model,status,n,p,dof,ssr,ssr_unit,chi2_reduced,rmse_GPa,"
          "r_squared,aic,aicc,bic,max_abs_correlation,flags,message,iterations,starts,starts_converged\n";
-  for (size_t i = 0; i < run.study.samples.size() && i < run.samples.size(); ++i) {
-    const StudySample& ss = run.study.samples[i];
+}
+
+void WriteFitsCsvRows(const StudySample& ss, const SampleRun& sr, std::ostream& out) {
+  {
     const bool weighted = IsWeighted(ss.sample);
     const bool strain = IsStrainSample(ss);  // residuals in strain: rmse in results.json (rmse_strain)
-    for (const FitResult& r : run.samples[i].fits) {
+    for (const FitResult& r : sr.fits) {
       const bool has = HasStatistics(r);
       auto stat = [&](double v) { return has ? Num(v) : std::string(); };
       std::vector<std::string> row = SampleFields(ss.sample);
@@ -89,10 +99,15 @@ void WriteFitsCsv(const StudyRun& run, std::ostream& out) {
   }
 }
 
-void WriteResidualsCsv(const StudyRun& run, std::ostream& out) {
+void WriteFitsCsv(const StudyRun& run, std::ostream& out) {
+  WriteFitsCsvHeader(run.study, run.metadata, out);
+  for (size_t i = 0; i < run.study.samples.size() && i < run.samples.size(); ++i)
+    WriteFitsCsvRows(run.study.samples[i], run.samples[i], out);
+}
+
+void WriteResidualsCsvHeader(const Study& study, const RunMetadata& meta, std::ostream& out) {
   out << detail::CsvPreamble(
-      "residuals, one row per sample, model and data point", run.study, run.metadata.started_utc,
-      run.metadata.tool_version,
+      "residuals, one row per sample, model and data point", study, meta.started_utc, meta.tool_version,
       {"pressure_MPa is the differential pressure P = P_c - n P_p; residual_GPa = observed - fitted; "
        "standardized_residual is internally studentised (residual / (s sigma sqrt(1 - leverage))); "
        "sigma_K_GPa blank when the data carry no uncertainty; point = 1-based index in the sample's data; "
@@ -100,11 +115,14 @@ void WriteResidualsCsv(const StudyRun& run, std::ostream& out) {
        "fits of strain samples are in strain_residuals.csv (residuals in strain units)"});
   out << "sample,model,point,location,pressure_MPa,observed_K_GPa,fitted_K_GPa,sigma_K_GPa,residual_GPa,"
          "standardized_residual,leverage,robust_weight\n";
-  for (size_t i = 0; i < run.study.samples.size() && i < run.samples.size(); ++i) {
-    const Sample& s = run.study.samples[i].sample;
+}
+
+void WriteResidualsCsvRows(const StudySample& ss, const SampleRun& sr, std::ostream& out) {
+  {
+    const Sample& s = ss.sample;
     const bool weighted = IsWeighted(s);
-    if (IsStrainSample(run.study.samples[i])) continue;  // in strain units: strain_residuals.csv
-    for (const FitResult& r : run.samples[i].fits) {
+    if (IsStrainSample(ss)) return;  // in strain units: strain_residuals.csv
+    for (const FitResult& r : sr.fits) {
       if (!HasStatistics(r)) continue;
       const ResidualDiagnostics& d = r.residuals;
       const std::vector<int> point = detail::ResidualToPoint(r, s);
@@ -119,6 +137,12 @@ void WriteResidualsCsv(const StudyRun& run, std::ostream& out) {
       }
     }
   }
+}
+
+void WriteResidualsCsv(const StudyRun& run, std::ostream& out) {
+  WriteResidualsCsvHeader(run.study, run.metadata, out);
+  for (size_t i = 0; i < run.study.samples.size() && i < run.samples.size(); ++i)
+    WriteResidualsCsvRows(run.study.samples[i], run.samples[i], out);
 }
 
 }  // namespace porofit

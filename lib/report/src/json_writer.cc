@@ -7,6 +7,7 @@
 #include "porofit/core/units.h"
 #include "porofit/report/report.h"
 #include "user_models_report.h"
+#include "porofit/report/stream.h"
 
 namespace porofit {
 namespace {
@@ -261,8 +262,7 @@ Json BandJson(const bands::Band& b, double scale) {
   return {{"estimate", Vec(b.estimate, scale)}, {"lower", Vec(b.lower, scale)}, {"upper", Vec(b.upper, scale)}};
 }
 
-Json GrainJson(const StudyRun& run, size_t i) {
-  const StudySample& ss = run.study.samples[i];
+Json GrainJson(const StudySample& ss, const std::vector<std::string>& shared_with) {
   const GrainModulusChoice& g = ss.grain;
   Json j;
   if (!g.given) {
@@ -274,7 +274,7 @@ Json GrainJson(const StudyRun& run, size_t i) {
   const double G = units::kGPa;
   j["method"] = std::string(poro::ToString(v.method));
   j["group"] = g.group.empty() ? Json(nullptr) : Json(g.group);
-  j["shared_with"] = detail::SharedWith(run.study, i);
+  j["shared_with"] = shared_with;
   if (g.where.known()) j["given_at"] = g.where.ToString();
   j["unit"] = "GPa unless named";
   j["K_s"] = Number(v.k_s / G);
@@ -373,37 +373,38 @@ Json AlphaJson(const bands::BandResult& b) {
 
 }  // namespace
 
-Json ResultsJson(const StudyRun& run, const std::vector<InputDigest>& inputs, const ReportOptions& options) {
-  const ModelRegistry& registry = options.registry ? *options.registry
-                                  : run.registry   ? *run.registry
-                                                   : ModelRegistry::Builtin();
+Json ResultsJsonHead(const Study& study, const RunMetadata& metadata, const std::vector<InputDigest>& inputs) {
+  const RunMetadata& m = metadata;
   Json j;
   j["caution"] = CautionText();
-  if (IsInventedStudy(run.study)) j["invented_data"] = InventedNotice(run.study);
+  if (IsInventedStudy(study)) j["invented_data"] = InventedNotice(study);
   j["schema"] = "porofit-results";
   j["schema_version"] = kResultsSchemaVersion;
 
   Json prov;
   prov["tool"] = "porofit";
-  prov["tool_version"] = run.metadata.tool_version;
-  prov["build_type"] = run.metadata.build_type;
-  prov["started_utc"] = run.metadata.started_utc;
-  prov["command_line"] = run.metadata.command_line;
-  prov["threads"] = run.metadata.threads;
+  prov["tool_version"] = m.tool_version;
+  prov["build_type"] = m.build_type;
+  prov["started_utc"] = m.started_utc;
+  prov["command_line"] = m.command_line;
+  prov["threads"] = m.threads;
   Json files = Json::array();
   for (const InputDigest& f : inputs) {
     files.push_back({{"path", f.path}, {"role", f.role}, {"sha256", f.sha256}, {"size_bytes", f.size_bytes}});
   }
   prov["input_files"] = files;
-  prov["loader_warnings"] = run.study.warnings;
+  prov["loader_warnings"] = study.warnings;
   j["provenance"] = prov;
 
-  j["study"] = {{"name", run.study.name}, {"description", run.study.description}, {"path", run.study.path}};
-  if (!run.study.user_models.empty()) j["user_models"] = detail::UserModelsJson(run.study);
+  j["study"] = {{"name", study.name}, {"description", study.description}, {"path", study.path}};
+  if (!study.user_models.empty()) j["user_models"] = detail::UserModelsJson(study);
+  return j;
+}
 
-  Json samples = Json::array();
-  for (size_t i = 0; i < run.study.samples.size(); ++i) {
-    const StudySample& ss = run.study.samples[i];
+Json SampleResultsJson(const StudySample& ss, const SampleRun* sr, const std::vector<std::string>& shared_with,
+                       const ReportOptions& options) {
+  const ModelRegistry& registry = options.registry ? *options.registry : ModelRegistry::Builtin();
+  {
     const Sample& s = ss.sample;
     Json js;
     js["id"] = s.id;
@@ -418,20 +419,25 @@ Json ResultsJson(const StudyRun& run, const std::vector<InputDigest>& inputs, co
     js["effective_pressure_coefficient"] = Number(s.effective_pressure_coefficient);
     js["sigma_absolute"] = s.sigma_absolute;
     js["weighted"] = IsWeighted(s);
+    if (!ss.fields.empty()) {  // extra sample_table columns, only for batch samples
+      Json fields = Json::object();
+      for (const auto& [name, value] : ss.fields) fields[name] = value;
+      js["fields"] = fields;
+    }
     js["options"] = OptionsJson(ss.options);
     js["data"] = DataJson(s);
     Json fits = Json::array();
-    if (i < run.samples.size()) {
-      const auto& results = run.samples[i].fits;
+    if (sr != nullptr) {
+      const auto& results = sr->fits;
       for (size_t k = 0; k < results.size() && k < ss.models.size(); ++k) {
         Json fj = FitJson(ss, ss.models[k], results[k], registry);
-        if (k < run.samples[i].bands.size()) fj["alpha"] = AlphaJson(run.samples[i].bands[k]);
+        if (k < sr->bands.size()) fj["alpha"] = AlphaJson(sr->bands[k]);
         fits.push_back(fj);
       }
     }
     js["fits"] = fits;
-    detail::AddStrainJson(run, i, js);  // strain samples: units of data, residuals, moduli
-    js["grain_modulus"] = GrainJson(run, i);
+    if (sr != nullptr) detail::AddStrainJson(ss, *sr, js);  // strain samples: units of data, residuals, moduli
+    js["grain_modulus"] = GrainJson(ss, shared_with);
     if (ss.fluid) {
       js["fluid_modulus"] = {{"K_f_GPa", Number(ss.fluid->k_f / units::kGPa)},
                              {"sigma_GPa", Number(ss.fluid->sigma / units::kGPa)},
@@ -453,8 +459,8 @@ Json ResultsJson(const StudyRun& run, const std::vector<InputDigest>& inputs, co
                              {"seed", bo.seed}};
     }
     Json vti = Json::array();
-    if (i < run.samples.size()) {
-      for (const VtiAlphaPoint& a : run.samples[i].vti)
+    if (sr != nullptr) {
+      for (const VtiAlphaPoint& a : sr->vti)
         vti.push_back({{"pressure_MPa", Number(a.pressure / units::kMPa)},
                        {"alpha_h", Number(a.alpha_h)},
                        {"sigma_alpha_h", Number(a.sigma_h)},
@@ -468,8 +474,8 @@ Json ResultsJson(const StudyRun& run, const std::vector<InputDigest>& inputs, co
     js["vti_alpha"] = vti;
     if (!ss.vti_fit_model.empty()) {
       Json stiffness_fits = Json::array();
-      if (i < run.samples.size()) {
-        for (const VtiStiffnessFit& f : run.samples[i].vti_fits) {
+      if (sr != nullptr) {
+        for (const VtiStiffnessFit& f : sr->vti_fits) {
           Json params = Json::array();
           for (const ParameterResult& p : f.fit.parameters)
             params.push_back({{"name", p.name}, {"estimate_si", Number(p.estimate)}, {"std_error_si", Number(p.std_error)}});
@@ -483,13 +489,16 @@ Json ResultsJson(const StudyRun& run, const std::vector<InputDigest>& inputs, co
       }
       js["vti_fit"] = {{"model", ss.vti_fit_model}, {"stiffness_fits", stiffness_fits}};
     }
-    if (i < run.samples.size()) js["comparison"] = detail::SampleComparisonJson(run.samples[i].comparison);
-    samples.push_back(js);
+    if (sr != nullptr) js["comparison"] = detail::SampleComparisonJson(sr->comparison);
+    return js;
   }
-  j["samples"] = samples;
+}
+
+void AddResultsJsonTail(const StudyRun& run, Json& j) {
+  const Study& study = run.study;
   j["comparison_summary"] = detail::ComparisonSummaryJson(run);
   Json overrides = Json::array();
-  for (const poro::Mineral& m : run.study.mineral_overrides)
+  for (const poro::Mineral& m : study.mineral_overrides)
     overrides.push_back({{"name", m.name},
                          {"bulk_GPa", Number(m.bulk / units::kGPa)},
                          {"shear_GPa", Number(m.shear / units::kGPa)},
@@ -503,6 +512,18 @@ Json ResultsJson(const StudyRun& run, const std::vector<InputDigest>& inputs, co
   j["alpha_notes"] = {detail::CorrelationCaveat()};
   j["branches"] = detail::BranchesJson(run);
   j["joint_fits"] = JointFitsJson(run);
+}
+
+Json ResultsJson(const StudyRun& run, const std::vector<InputDigest>& inputs, const ReportOptions& options) {
+  ReportOptions with_catalogue = options;  // the run's catalogue knows the study's user models
+  if (with_catalogue.registry == nullptr && run.registry) with_catalogue.registry = run.registry.get();
+  Json j = ResultsJsonHead(run.study, run.metadata, inputs);
+  Json samples = Json::array();
+  for (size_t i = 0; i < run.study.samples.size(); ++i)
+    samples.push_back(SampleResultsJson(run.study.samples[i], i < run.samples.size() ? &run.samples[i] : nullptr,
+                                        detail::SharedWith(run.study, i), with_catalogue));
+  j["samples"] = samples;
+  AddResultsJsonTail(run, j);
   return j;
 }
 

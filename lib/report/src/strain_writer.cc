@@ -6,6 +6,7 @@
 #include "format.h"
 #include "porofit/core/units.h"
 #include "porofit/report/report.h"
+#include "porofit/report/stream.h"
 
 namespace porofit {
 using detail::CsvField;
@@ -24,11 +25,11 @@ bool HasStatistics(const FitResult& r) {
 
 }  // namespace
 
-void WriteModuliCsv(const StudyRun& run, std::ostream& out) {
+void WriteModuliCsvHeader(const Study& study, const RunMetadata& meta, std::ostream& out) {
   out << detail::CsvPreamble(
       "tangent, secant and chord bulk moduli of strain samples (data column eps_v), one row per sample, model, "
       "source and pressure",
-      run.study, run.metadata.started_utc, run.metadata.tool_version,
+      study, meta.started_utc, meta.tool_version,
       {"source = fitted: the fitted strain curve at a band-grid pressure; K_tangent_GPa = K(P) from the fitted "
        "model (the derivative dP/deps of the fitted curve, not a difference of data), with its delta-method "
        "confidence band (K_tangent_lower/upper_GPa at `confidence`, 1-sigma K_tangent_se_GPa); "
@@ -40,10 +41,13 @@ void WriteModuliCsv(const StudyRun& run, std::ostream& out) {
        "modulus, never the secant or chord"});
   out << "sample,model,source,P_MPa,P_from_MPa,P_to_MPa,eps_v_fitted,K_tangent_GPa,K_tangent_se_GPa,"
          "K_tangent_lower_GPa,K_tangent_upper_GPa,confidence,K_secant_GPa,K_chord_GPa,extrapolated\n";
+}
+
+void WriteModuliCsvRows(const StudySample& ss, const SampleRun& sr, std::ostream& out) {
   const double G = units::kGPa, M = units::kMPa;
-  for (size_t i = 0; i < run.study.samples.size() && i < run.samples.size(); ++i) {
-    const Sample& s = run.study.samples[i].sample;
-    for (const StrainModulusPoint& p : run.samples[i].strain_moduli) {
+  {
+    const Sample& s = ss.sample;
+    for (const StrainModulusPoint& p : sr.strain_moduli) {
       out << CsvRow({CsvField(s.id), CsvField(p.model_id), p.source, Num(p.pressure / M), Num(p.pressure_from / M),
                      Num(p.pressure_to / M), Num(p.strain), Num(p.tangent / G), Num(p.tangent_se / G),
                      Num(p.tangent_lower / G), Num(p.tangent_upper / G),
@@ -53,21 +57,23 @@ void WriteModuliCsv(const StudyRun& run, std::ostream& out) {
   }
 }
 
-void WriteStrainResidualsCsv(const StudyRun& run, std::ostream& out) {
+void WriteStrainResidualsCsvHeader(const Study& study, const RunMetadata& meta, std::ostream& out) {
   out << detail::CsvPreamble(
-      "residuals of strain-form fits (strain samples), one row per sample, model and data point", run.study,
-      run.metadata.started_utc, run.metadata.tool_version,
+      "residuals of strain-form fits (strain samples), one row per sample, model and data point", study,
+      meta.started_utc, meta.tool_version,
       {"residuals are in volumetric strain (plain, dimensionless; compression positive): residual_eps_v = "
        "observed_eps_v - fitted_eps_v; sigma_eps_v blank when the data carry no uncertainty; "
        "standardized_residual, leverage and robust_weight as in residuals.csv (which lists modulus fits only)"});
   out << "sample,model,point,location,pressure_MPa,observed_eps_v,fitted_eps_v,sigma_eps_v,residual_eps_v,"
          "standardized_residual,leverage,robust_weight\n";
-  for (size_t i = 0; i < run.study.samples.size() && i < run.samples.size(); ++i) {
-    const StudySample& ss = run.study.samples[i];
-    if (!IsStrainSample(ss)) continue;
+}
+
+void WriteStrainResidualsCsvRows(const StudySample& ss, const SampleRun& sr, std::ostream& out) {
+  {
+    if (!IsStrainSample(ss)) return;
     const Sample& s = ss.sample;
     const bool weighted = IsWeighted(s);
-    for (const FitResult& r : run.samples[i].fits) {
+    for (const FitResult& r : sr.fits) {
       if (!HasStatistics(r)) continue;
       const ResidualDiagnostics& d = r.residuals;
       const std::vector<int> point = detail::ResidualToPoint(r, s);
@@ -84,11 +90,21 @@ void WriteStrainResidualsCsv(const StudyRun& run, std::ostream& out) {
   }
 }
 
+void WriteModuliCsv(const StudyRun& run, std::ostream& out) {
+  WriteModuliCsvHeader(run.study, run.metadata, out);
+  for (size_t i = 0; i < run.study.samples.size() && i < run.samples.size(); ++i)
+    WriteModuliCsvRows(run.study.samples[i], run.samples[i], out);
+}
+
+void WriteStrainResidualsCsv(const StudyRun& run, std::ostream& out) {
+  WriteStrainResidualsCsvHeader(run.study, run.metadata, out);
+  for (size_t i = 0; i < run.study.samples.size() && i < run.samples.size(); ++i)
+    WriteStrainResidualsCsvRows(run.study.samples[i], run.samples[i], out);
+}
+
 namespace detail {
 
-void AddStrainJson(const StudyRun& run, size_t i, Json& js) {
-  if (i >= run.study.samples.size() || i >= run.samples.size()) return;
-  const StudySample& ss = run.study.samples[i];
+void AddStrainJson(const StudySample& ss, const SampleRun& sr, Json& js) {
   if (!IsStrainSample(ss)) return;
   const Sample& s = ss.sample;
   const bool weighted = IsWeighted(s);
@@ -100,7 +116,6 @@ void AddStrainJson(const StudyRun& run, size_t i, Json& js) {
     data[k]["eps_v"] = Number(s.points[k].strain);
     data[k]["sigma_eps_v"] = s.points[k].sigma > 0 ? Number(s.points[k].sigma) : Json(nullptr);
   }
-  const SampleRun& sr = run.samples[i];
   Json& fits = js["fits"];
   for (size_t k = 0; k < fits.size() && k < sr.fits.size(); ++k) {
     const FitResult& r = sr.fits[k];

@@ -11,6 +11,6 @@ namespace porofit::detail {
 /// points gain eps_v (K_GPa null), each fit gains a "strain" object (response,
 /// units, residuals in strain, rmse_strain, moduli rows) and its K-named
 /// residual and rmse fields become null. Does nothing for other samples.
-void AddStrainJson(const StudyRun& run, size_t i, nlohmann::ordered_json& js);
+void AddStrainJson(const StudySample& sample, const SampleRun& run, nlohmann::ordered_json& js);
 
 }  // namespace porofit::detail

@@ -8,6 +8,7 @@
 #include "porofit/core/units.h"
 #include "porofit/report/report.h"
 #include "user_models_report.h"
+#include "porofit/report/stream.h"
 
 namespace porofit {
 namespace {
@@ -177,35 +178,52 @@ void SampleBlock(const StudySample& ss, const SampleRun& sr, std::ostream& out) 
 
 }  // namespace
 
-void WriteSummary(const StudyRun& run, std::ostream& out) {
-  size_t n_fits = 0, n_converged = 0, n_flagged = 0;
-  for (size_t i = 0; i < run.samples.size(); ++i) {
-    for (const FitResult& r : run.samples[i].fits) {
-      ++n_fits;
-      n_converged += r.status == FitStatus::kConverged ? 1 : 0;
-      n_flagged += detail::FitFlags(r, run.study.samples[i].options).empty() ? 0 : 1;
-    }
+void SummaryCounts::Add(const StudySample& ss, const SampleRun& sr) {
+  for (const FitResult& r : sr.fits) {
+    ++fits;
+    converged += r.status == FitStatus::kConverged ? 1 : 0;
+    flagged += detail::FitFlags(r, ss.options).empty() ? 0 : 1;
   }
-  out << "porofit " << run.metadata.tool_version << " - study \"" << run.study.name << "\" - "
-      << run.study.samples.size() << " samples, " << n_fits << " fits (" << n_converged << " converged, " << n_flagged
-      << " flagged) - run " << run.metadata.started_utc << "\n";
+}
+
+void WriteSummaryHead(const Study& study, const RunMetadata& meta, const SummaryCounts& c, std::ostream& out) {
+  out << "porofit " << meta.tool_version << " - study \"" << study.name << "\" - " << study.samples.size()
+      << " samples, " << c.fits << " fits (" << c.converged << " converged, " << c.flagged << " flagged) - run "
+      << meta.started_utc << "\n";
   out << CautionText() << "\n";
-  const std::string invented = InventedNotice(run.study);
+  const std::string invented = InventedNotice(study);
   if (!invented.empty()) out << invented << "\n";
-  for (const std::string& w : run.study.warnings) out << w << "\n";
-  detail::WriteUserModelsSummary(run.study, out);
-  for (size_t i = 0; i < run.study.samples.size() && i < run.samples.size(); ++i) {
-    out << "\n";
-    SampleBlock(run.study.samples[i], run.samples[i], out);
-  }
+  for (const std::string& w : study.warnings) out << w << "\n";
+  detail::WriteUserModelsSummary(study, out);
+}
+
+void WriteSummarySample(const StudySample& ss, const SampleRun& sr, std::ostream& out) {
+  out << "\n";
+  SampleBlock(ss, sr, out);
+}
+
+void WriteSummaryAcross(const StudyRun& run, std::ostream& out) {
   detail::WriteComparisonGroupTable(run, out);
   detail::WriteBranchSummary(run, out);
   WriteJointSummary(run, out);
+}
+
+void WriteSummary(const StudyRun& run, std::ostream& out) {
+  SummaryCounts counts;
+  for (size_t i = 0; i < run.samples.size(); ++i) counts.Add(run.study.samples[i], run.samples[i]);
+  WriteSummaryHead(run.study, run.metadata, counts, out);
+  for (size_t i = 0; i < run.study.samples.size() && i < run.samples.size(); ++i)
+    WriteSummarySample(run.study.samples[i], run.samples[i], out);
+  WriteSummaryAcross(run, out);
+  WriteSummaryFoot(run.study, out);
+}
+
+void WriteSummaryFoot(const Study& study, std::ostream& out) {
   out << "\nRMSE from raw residuals. AICc: lower is better, compare only fits of the same sample; a gap under 2 "
          "does not separate two models (Burnham & Anderson 2002). Check every flag and note before using a fit; "
          "flags are explained in docs/outputs.md.\n";
   bool any_alpha = false;
-  for (const StudySample& ss : run.study.samples) any_alpha = any_alpha || ss.grain.given;
+  for (const StudySample& ss : study.samples) any_alpha = any_alpha || ss.grain.given;
   if (any_alpha) out << "alpha = 1 - K_dry/K_s. " << detail::CorrelationCaveat() << ".\n";
 }
 

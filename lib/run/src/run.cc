@@ -276,6 +276,19 @@ std::vector<VtiAlphaPoint> RunVti(const StudySample& s, const ModelRegistry& reg
   return out;
 }
 
+SampleRun RunSample(const StudySample& s, const ModelRegistry& registry, const compare::ComparisonOptions& comparison) {
+  SampleRun out;
+  out.fits.reserve(s.models.size());
+  for (const ModelChoice& c : s.models) out.fits.push_back(RunOne(s, c, registry));
+  if (s.grain.given) {
+    for (size_t k = 0; k < out.fits.size(); ++k) out.bands.push_back(RunBands(s, s.models[k], out.fits[k], registry));
+  }
+  out.vti = RunVti(s, registry, out.vti_fits);
+  out.strain_moduli = RunStrainModuli(s, out.fits, registry);
+  out.comparison = RunComparison(s, out.fits, comparison, registry);
+  return out;
+}
+
 StudyRun RunStudy(const Study& study, const RunOptions& options) {
   const std::string bad = options.Validate();
   POROFIT_CHECK(bad.empty(), "RunOptions: " + bad);
@@ -295,24 +308,8 @@ StudyRun RunStudy(const Study& study, const RunOptions& options) {
   run.samples.resize(n_samples);
   const auto t0 = std::chrono::steady_clock::now();
 
-  auto run_sample = [&](size_t i) {
-    const StudySample& s = study.samples[i];
-    std::vector<FitResult> fits;
-    fits.reserve(s.models.size());
-    for (const ModelChoice& c : s.models) fits.push_back(RunOne(s, c, registry));
-    std::vector<bands::BandResult> band_results;
-    if (s.grain.given) {
-      for (size_t k = 0; k < fits.size(); ++k) band_results.push_back(RunBands(s, s.models[k], fits[k], registry));
-    }
-    std::vector<VtiStiffnessFit> vti_fits;
-    std::vector<VtiAlphaPoint> vti = RunVti(s, registry, vti_fits);
-    run.samples[i].fits = std::move(fits);  // each worker writes only its own slot
-    run.samples[i].bands = std::move(band_results);
-    run.samples[i].vti = std::move(vti);
-    run.samples[i].vti_fits = std::move(vti_fits);
-    run.samples[i].strain_moduli = RunStrainModuli(s, run.samples[i].fits, registry);
-    run.samples[i].comparison = RunComparison(s, run.samples[i].fits, study.comparison, registry);
-  };
+  // Each worker writes only its own slot.
+  auto run_sample = [&](size_t i) { run.samples[i] = RunSample(study.samples[i], registry, study.comparison); };
 
   const size_t workers = std::min<size_t>(static_cast<size_t>(options.threads), n_samples);
   if (workers <= 1) {

@@ -84,6 +84,9 @@ struct StudySample {
   std::string vti_fit_model;
   SourceLocation vti_fit_where;        ///< of the `fit` value (when given)
   BandSettings bands;
+  /// Extra columns of a `sample_table` row (name, text as written), in column
+  /// order, for grouping and labelling; empty for samples written in YAML.
+  std::vector<std::pair<std::string, std::string>> fields;
 };
 
 /// Study-level settings of the branch (hysteresis) tests, key `branch_tests`

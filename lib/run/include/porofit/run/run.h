@@ -217,6 +217,11 @@ std::vector<VtiAlphaPoint> RunVti(const StudySample& sample, const ModelRegistry
 /// them), its comparison with the separate fits and its members' alpha bands.
 /// Never throws for a failing fit.
 JointRun RunJoint(const Study& study, const JointFitChoice& choice, const ModelRegistry& registry);
+/// Everything RunStudy() computes for one sample: its fits, alpha bands and
+/// VTI points. Never throws for a failing fit. The streaming runner
+/// (porofit/run/stream.h) and RunStudy() both call it.
+SampleRun RunSample(const StudySample& sample, const ModelRegistry& registry,
+                    const compare::ComparisonOptions& comparison = {});
 
 /// Runs the whole study. Requires options.Validate().empty() (checked: a bad
 /// option is a programmer error and aborts).
