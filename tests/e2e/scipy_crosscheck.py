@@ -198,7 +198,7 @@ def main():
             if fit["status"] != "converged":
                 skipped.append(f"{label}: status {fit['status']}")
                 continue
-            if fit["model"] not in MODELS:  # a study's own formula model: no independent transcription here
+            if fit["model"] not in MODELS:  # a study's own formula model: this script has no independent copy of it
                 skipped.append(f"{label}: user model (formula models are checked against NIST StRD in C++)")
                 continue
             if sample["options"]["loss"] != "none":
