@@ -103,4 +103,20 @@ struct DensityLogSpec {
 /// fill is needed but not given.
 DensityProfile BuildDensityProfile(const LasFile& las, const DensityLogSpec& spec);
 
+/// Any curve against depth below the table datum, for pore-pressure and
+/// facies curves: the index converted to metres, shifted by `index_offset` and
+/// mapped through the survey (same rules as DensityLogSpec); rows where the
+/// curve is NULL are dropped. Values are as written in the file, in `unit`
+/// (the caller converts). Throws InputError (path, ~C line) when the curve is
+/// missing or has no valid value.
+struct CurveSeries {
+  std::string mnemonic;
+  std::string unit;            ///< as written in ~C
+  std::vector<double> depth;   ///< m below datum, ascending
+  std::vector<double> value;
+  int line = 0;                ///< 1-based ~C line of the curve
+};
+CurveSeries ExtractCurve(const LasFile& las, const std::string& mnemonic, double index_offset = 0,
+                         const std::vector<double>& survey_md = {}, const std::vector<double>& survey_tvd = {});
+
 }  // namespace porofit::depth
