@@ -166,25 +166,49 @@ DensityProfile BuildDensityProfile(const LasFile& las, const DensityLogSpec& spe
   const std::vector<double>& index = las.curves.front().values;
   const std::string& mn = rho_c.header.mnemonic;
 
-  // Classify each row: valid, NULL, or screened. Rows above the rock top are not used.
+  // Classify each row: valid, NULL, or screened.
   enum class Row { kValid, kNull, kScreened };
-  std::vector<double> z, rho;
-  std::vector<Row> kind;
-  size_t above_rock_top = 0;
-  double prev_valid_z = NAN, prev_valid_rho = NAN;  // last valid row above the rock top, for the cut
+  std::vector<Row> cls(index.size(), Row::kNull);
+  size_t last_valid = index.size();  // none yet
+  size_t unscreened = 0;             // valid density, but the correction curve is NULL there
   for (size_t i = 0; i < index.size(); ++i) {
     const double v = rho_c.values[i];
-    Row k = std::isnan(v) ? Row::kNull : Row::kValid;
-    if (k == Row::kValid && !(v > 0)) {
+    if (std::isnan(v)) continue;
+    if (!(v > 0)) {
       throw InputError({las.path, rho_c.header.line, 0},
                        "density curve " + mn + " = " + FormatNumber(v) + " " + rho_c.header.unit + " at index " +
                            FormatNumber(index[i]) + " m is not positive");
     }
-    if (k == Row::kValid && corr_c != nullptr) {
+    cls[i] = Row::kValid;
+    if (corr_c != nullptr) {
       const double c = corr_c->values[i];
-      if (!std::isnan(c) && std::fabs(c * corr_factor) > spec.correction_limit) k = Row::kScreened;
+      if (std::isnan(c)) {
+        ++unscreened;
+      } else if (std::fabs(c * corr_factor) > spec.correction_limit) {
+        cls[i] = Row::kScreened;
+      }
     }
-    // Map only rows that can enter the profile; a NULL row outside the survey is harmless.
+    if (cls[i] == Row::kValid) last_valid = i;
+  }
+  if (last_valid == index.size()) {
+    throw InputError({las.path, rho_c.header.line, 0},
+                     "density curve " + mn + " has no valid sample" +
+                         (corr_c ? " after the " + corr_c->header.mnemonic + " screen" : std::string()));
+  }
+  // Rows below the last valid one end the profile; they are not mapped (the
+  // survey need not reach them).
+  const size_t trailing = index.size() - 1 - last_valid;
+  const double trailing_to = index.back() + spec.index_offset;
+
+  // Map rows to table depth. Rows above the rock top are not used; invalid rows
+  // before the first valid one are dropped (the fill covers them).
+  std::vector<double> z, rho;
+  std::vector<Row> kind;
+  size_t above_rock_top = 0;
+  double prev_valid_z = NAN, prev_valid_rho = NAN;  // last valid row above the rock top, for the cut
+  for (size_t i = 0; i <= last_valid; ++i) {
+    const Row k = cls[i];
+    const double v = rho_c.values[i];
     if (k != Row::kValid && z.empty()) {
       prev_valid_z = NAN;  // never bridge a gap into the rock top
       continue;
@@ -214,20 +238,9 @@ DensityProfile BuildDensityProfile(const LasFile& las, const DensityLogSpec& spe
     rho.push_back(k == Row::kValid ? v * factor : NAN);
     kind.push_back(k);
   }
-  // Trailing invalid rows end the profile.
-  size_t trailing = 0;
-  double trailing_to = NAN;
-  while (!kind.empty() && kind.back() != Row::kValid) {
-    if (std::isnan(trailing_to)) trailing_to = z.back();
-    ++trailing;
-    z.pop_back();
-    rho.pop_back();
-    kind.pop_back();
-  }
   if (z.empty()) {
     throw InputError({las.path, rho_c.header.line, 0},
-                     "density curve " + mn + " has no valid sample below the rock top at " + M(spec.rock_top) +
-                         (corr_c ? " after the " + corr_c->header.mnemonic + " screen" : std::string()));
+                     "density curve " + mn + " has no valid sample below the rock top at " + M(spec.rock_top));
   }
 
   DensityProfile out;
@@ -242,6 +255,10 @@ DensityProfile BuildDensityProfile(const LasFile& las, const DensityLogSpec& spe
   if (corr_c != nullptr) {
     out.notes.push_back("bad-hole screen: samples with |" + corr_c->header.mnemonic + "| > " +
                         FormatNumber(spec.correction_limit / 1000.0) + " g/cc rejected and bridged");
+    if (unscreened > 0) {
+      out.notes.push_back(std::to_string(unscreened) + " " + mn + " samples kept unscreened because " +
+                          corr_c->header.mnemonic + " is NULL there");
+    }
   }
 
   // Fill above the first valid sample.
@@ -302,7 +319,7 @@ DensityProfile BuildDensityProfile(const LasFile& las, const DensityLogSpec& spe
   if (trailing > 0) {
     out.notes.push_back("profile ends at the last valid " + mn + " sample at " + M(z.back()) + "; " +
                         std::to_string(trailing) + " NULL or screened samples below it, down to " + M(trailing_to) +
-                        ", are not used");
+                        " (index depth + offset), are not used");
   }
   return out;
 }
