@@ -257,25 +257,31 @@ TEST(DensityLog, BridgesNullsScreensBadHoleFillsAboveTheTopAndSaysSo) {
   spec.fill_above = DensityTrend{{0.0, 50.0}, {1800.0, 1900.0}, "1.80 g/cc at 0 m to 1.90 g/cc at 50 m (invented)"};
   const DensityProfile p = BuildDensityProfile(las, spec);
 
-  // Fill: 20 m (trend 1840), the trend point at 50 m, then the log from 100 m.
-  ASSERT_EQ(p.depth.size(), 2u + 9u);
+  // Fill: 20 m (trend 1840), the trend point at 50 m, the trend held to 99.99 m, then the log from 100 m.
+  ASSERT_EQ(p.depth.size(), 3u + 9u);
   EXPECT_EQ(p.depth[0], 20.0);
   EXPECT_NEAR(p.density[0], 1840.0, 1e-9);
   EXPECT_EQ(p.source[0], DensitySource::kFilled);
   EXPECT_EQ(p.depth[1], 50.0);
   EXPECT_EQ(p.source[1], DensitySource::kFilled);
-  EXPECT_EQ(p.source[2], DensitySource::kMeasured);
+  EXPECT_NEAR(p.depth[2], 99.99, 1e-12);
+  EXPECT_EQ(p.density[2], 1900.0);
+  EXPECT_EQ(p.source[2], DensitySource::kFilled);
+  EXPECT_EQ(p.source[3], DensitySource::kMeasured);
   // NULL run 102-103 bridged between 2.1 (101) and 2.4 (104).
-  EXPECT_EQ(p.source[4], DensitySource::kBridged);
-  EXPECT_NEAR(p.density[4], 2200.0, 1e-9);
-  EXPECT_NEAR(p.density[5], 2300.0, 1e-9);
+  EXPECT_EQ(p.source[5], DensitySource::kBridged);
+  EXPECT_NEAR(p.density[5], 2200.0, 1e-9);
+  EXPECT_NEAR(p.density[6], 2300.0, 1e-9);
   // Bad hole at 106 bridged between 2.5 and 2.5.
-  EXPECT_EQ(p.depth[8], 106.0);
-  EXPECT_EQ(p.source[8], DensitySource::kBadHole);
-  EXPECT_NEAR(p.density[8], 2500.0, 1e-9);
+  EXPECT_EQ(p.depth[9], 106.0);
+  EXPECT_EQ(p.source[9], DensitySource::kBadHole);
+  EXPECT_NEAR(p.density[9], 2500.0, 1e-9);
   // The profile ends at the last valid sample.
   EXPECT_EQ(p.depth.back(), 108.0);
   EXPECT_THROW(CumulativeLoad(p, {109.0}), InputError);
+  // Load to the log top: trapezoids 20-50 (1840 -> 1900), 50-99.99 at 1900, 0.01 m join to 2000.
+  EXPECT_NEAR(CumulativeLoad(p, {100.0})[0],
+              kGravity * (30.0 * 1870.0 + 49.99 * 1900.0 + 0.01 * 1950.0), 1e-6);
 
   EXPECT_TRUE(HasNote(p, "RHOB NULL from 102 m to 103 m (2 samples), bridged linearly between 101 m and 104 m"));
   EXPECT_TRUE(HasNote(p, "rejected by the DRHO screen from 106 m to 106 m (1 samples)"));
@@ -349,6 +355,37 @@ TEST(DensityLog, StartsAtTheRockTopWhenTheLogCrossesItAndIgnoresNullsBelowTheSur
   EXPECT_TRUE(HasNote(p, "1 RHOB samples kept unscreened because DRHO is NULL there"));
   EXPECT_TRUE(HasNote(p, "2 NULL or screened samples below it, down to 130 m"));
   EXPECT_NEAR(CumulativeLoad(p, {110.0})[0], kGravity * (5.0 * 2150.0 + 10.0 * 2250.0), 1e-6);
+}
+
+TEST(DensityLog, InventedFixtureInFeetFromKbIntegratesToTheAnalyticLoad) {
+  // tests/data/las/invented_density_ft.las (invented): RHOB = 2.0 + 0.0002 (z - 457.2 m) g/cc,
+  // z = MD from KB in metres, with a NULL run and a bad-hole stretch whose garbage values the
+  // screen must remove. Linear bridging of a linear log is exact, so S_v is analytic [calculus]:
+  // fill 400 m -> log top at constant 1900 kg/m^3 (plus the 0.01 m join), then g (2000 h + 0.1 h^2).
+  const LasFile las = ReadLas(std::string(POROFIT_TEST_DATA_DIR) + "/las/invented_density_ft.las");
+  EXPECT_EQ(las.index_unit, "FT");
+  ASSERT_EQ(las.curves.size(), 4u);
+  EXPECT_EQ(las.curves[0].values.size(), 751u);
+  const LasHeaderItem* date = las.FindWell("DATE");
+  ASSERT_NE(date, nullptr);
+  EXPECT_EQ(date->value, "2026-12-02 12:30");
+  DensityLogSpec spec;
+  spec.index_offset = -80.0 * 0.3048;  // EKB 80 ft above MSL, table datum MSL
+  spec.rock_top = 400.0;
+  spec.correction_curve = "DRHO";
+  spec.correction_limit = 100.0;
+  spec.fill_above = DensityTrend{{0.0}, {1900.0}, "1.90 g/cc constant (invented)"};
+  const DensityProfile p = BuildDensityProfile(las, spec);
+  const double top = 1500 * 0.3048 + spec.index_offset, h = 1500 * 0.3048;
+  ASSERT_NEAR(p.depth.back(), top + h, 1e-9);
+  const double fill = (top - 0.01 - 400.0) * 1900.0 + 0.01 * 1950.0;
+  const double expected = kGravity * (fill + 2000.0 * h + 0.1 * h * h);
+  // RHOB is printed with 6 decimals (5e-4 kg/m^3 rounding).
+  EXPECT_NEAR(CumulativeLoad(p, {p.depth.back()})[0], expected, 1e-6 * expected);
+  EXPECT_TRUE(HasNote(p, "RHOB NULL from"));
+  EXPECT_TRUE(HasNote(p, "rejected by the DRHO screen from"));
+  const SourceIndex idx(p);
+  EXPECT_EQ(idx.SourcesAbove(p.depth.back()), 0x0F);
 }
 
 TEST(LasReader, ExtractCurveDropsNullRowsAndKeepsTheUnit) {

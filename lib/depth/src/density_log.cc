@@ -15,6 +15,10 @@ std::string Upper(std::string s) {
   return s;
 }
 
+// The fill trend is held to this far above the first log sample (m); the
+// profile is linear across this short join.
+constexpr double kFillJoin = 0.01;
+
 std::string M(double z) { return FormatNumber(std::round(z * 1e4) / 1e4) + " m"; }
 
 // kg/m^3 per unit of the curve, or 0 if the unit is not a density unit.
@@ -280,8 +284,14 @@ DensityProfile BuildDensityProfile(const LasFile& las, const DensityLogSpec& spe
         out.source.push_back(DensitySource::kFilled);
       }
     }
+    // Hold the trend down to just above the log top so the profile does not
+    // ramp from the last trend point to the first log value over the whole fill.
+    const double hold = std::min(kFillJoin, 0.5 * (z.front() - out.depth.back()));
+    out.depth.push_back(z.front() - hold);
+    out.density.push_back(TrendAt(t, z.front() - hold));
+    out.source.push_back(DensitySource::kFilled);
     out.notes.push_back("filled from the rock top at " + M(spec.rock_top) + " to the first valid " + mn + " at " +
-                        M(z.front()) + " with the user trend: " +
+                        M(z.front()) + " (trend held to " + FormatNumber(hold) + " m above it) with the user trend: " +
                         (t.description.empty() ? std::string("(no description)") : t.description));
   }
 
