@@ -8,6 +8,7 @@
 
 #include <gtest/gtest.h>
 
+#include <chrono>
 #include <cmath>
 #include <cstdio>
 #include <cstring>
@@ -386,6 +387,28 @@ TEST(DensityLog, InventedFixtureInFeetFromKbIntegratesToTheAnalyticLoad) {
   EXPECT_TRUE(HasNote(p, "rejected by the DRHO screen from"));
   const SourceIndex idx(p);
   EXPECT_EQ(idx.SourcesAbove(p.depth.back()), 0x0F);
+}
+
+TEST(LasReader, ParsesATenThousandRowFileInWellUnderASecond) {
+  LasSpec s = FiveCurves(false);
+  for (auto& c : s.cols) c.clear();
+  std::mt19937_64 rng(7);
+  std::uniform_real_distribution<double> u(0.0, 1.0);
+  for (int i = 0; i < 10000; ++i) {
+    s.cols[0].push_back(1000.0 + 0.1524 * i);
+    for (size_t c = 1; c < 6; ++c) s.cols[c].push_back(2.0 + u(rng));
+  }
+  for (const bool wrap : {false, true}) {
+    s.wrap = wrap;
+    const std::string text = LasText(s);
+    const auto t0 = std::chrono::steady_clock::now();
+    const LasFile las = ParseLas(text, "big.las");
+    const double ms = std::chrono::duration<double, std::milli>(std::chrono::steady_clock::now() - t0).count();
+    std::printf("ParseLas: 10000 rows x 6 curves (%s, %zu bytes) in %.1f ms\n", wrap ? "wrapped" : "unwrapped",
+                text.size(), ms);
+    EXPECT_EQ(las.curves[5].values.size(), 10000u);
+    EXPECT_LT(ms, 1000.0);
+  }
 }
 
 TEST(LasReader, ExtractCurveDropsNullRowsAndKeepsTheUnit) {
