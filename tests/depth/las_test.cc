@@ -8,6 +8,7 @@
 
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <chrono>
 #include <cmath>
 #include <cstdio>
@@ -574,6 +575,8 @@ TEST(LasReader, MalformedFilesReportFileLineAndRule) {
       {"off the STEP grid", [](auto& l) { Set(l, 7, "STEP.M   0.25 : STEP"); }, 20, 1, "is off the regular STEP = 0.25"},
       {"header line without colon", [](auto& l) { Set(l, 9, "WELL.    INVENTED WELL 1"); }, 9, 0,
        "header line for WELL has no ':'"},
+      {"duplicate STRT", [](auto& l) { Set(l, 9, "STRT.M   1000.0 : AGAIN"); }, 9, 0,
+       "STRT appears twice in ~W (first at line 5)"},
       {"index is NULL", [](auto& l) { Set(l, 21, "-999.25 2.32 0.01"); }, 21, 1, "index value -999.25 is the NULL value"},
   };
   for (size_t i = 0; i < cases.size(); ++i) {

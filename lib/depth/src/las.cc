@@ -209,6 +209,11 @@ void Parser::CheckHeadersBeforeData(int line) {
   for (size_t i = 0; i < req.size(); ++i) {
     const LasHeaderItem* it = find_w(req[i]);
     if (it == nullptr) Fail(wline, std::string("~W has no ") + req[i] + " line (LAS 2.0 requires STRT, STOP, STEP and NULL)");
+    for (const LasHeaderItem& other : las_.well) {
+      if (&other != it && Upper(other.mnemonic) == req[i]) {
+        Fail(other.line, std::string(req[i]) + " appears twice in ~W (first at line " + std::to_string(it->line) + ")");
+      }
+    }
     if (it->value.empty() && ParseNumber(Trim(it->description), &num[i])) {
       Fail(it->line, std::string(req[i]) +
                          " has its value after the colon, as LAS 1.2 writes it; LAS 2.0 puts the value before the "
