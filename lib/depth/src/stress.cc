@@ -149,6 +149,9 @@ Overburden ComputeOverburden(const DepthTableSpec& spec, const std::vector<doubl
       if (p.depth.empty() || p.depth.size() != p.density.size())
         ThrowAt(where, "overburden density profile has " + std::to_string(p.depth.size()) + " depths and " +
                            std::to_string(p.density.size()) + " densities");
+      if (p.source.size() != p.depth.size())
+        ThrowAt(where, "overburden density profile has " + std::to_string(p.depth.size()) + " depths and " +
+                           std::to_string(p.source.size()) + " source flags");
       if (p.depth.front() > rock_top + 1e-6)
         ThrowAt(where, "overburden density profile starts at " + FormatNumber(p.depth.front()) +
                            " m, below the rock top " + FormatNumber(rock_top) +

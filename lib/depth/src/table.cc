@@ -61,7 +61,8 @@ std::uint32_t PointFlags(const FittedCurve& c, double pressure, double k, double
   }
   if (!std::isfinite(k)) {
     f |= kModelUndefined;
-  } else if (alpha > 1 || (!std::isnan(c.porosity) && alpha < c.porosity)) {
+  } else if (alpha > 1 || alpha < (std::isnan(c.porosity) ? 0.0 : c.porosity)) {
+    // Unknown porosity: alpha >= phi >= 0 still bounds it below by 0.
     f |= kAlphaOutsideBounds;
   }
   return f;

@@ -167,7 +167,7 @@ std::vector<std::string> DescribeAssumptions(const DepthTableSpec& s) {
   }
   for (const FittedCurve& c : s.curves)
     a.push_back("curve " + CurveLabel(c) + ": K_s = " + Num(c.k_s) + " +- " + Num(c.sigma_k_s) + " Pa, porosity " +
-                (std::isnan(c.porosity) ? std::string("unknown (alpha >= porosity not checked)") : Num(c.porosity)) +
+                (std::isnan(c.porosity) ? std::string("unknown (alpha checked against 0 instead)") : Num(c.porosity)) +
                 ", lab pressures " + Num(c.lab_min) + " to " + Num(c.lab_max) + " Pa");
 
   // Depletion.
