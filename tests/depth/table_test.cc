@@ -306,6 +306,17 @@ TEST(DepthTableFlags, NegativeEffectiveStressIsFlaggedAndStillEvaluated) {
   EXPECT_NEAR(r.evaluation_pressure, -1e6, 1e-3);
   EXPECT_EQ(r.flags, kNegativeEffectiveStress | kBelowLabRange) << FlagsToString(r.flags);
   EXPECT_TRUE(std::isfinite(r.k_dry));  // exp-modulus is defined at P < 0
+
+  // A power law with reference pressure is undefined at P <= 0: not evaluated there.
+  std::mt19937_64 rng(5150);
+  const Sample pw = Simulate("power-ref", {10.0, 0.2, 20.0}, 12, 0.01, rng, 2.0, 60.0);
+  ASSERT_EQ(pw.fit.status, FitStatus::kConverged);
+  t.curves[0] = CurveOf(pw, 37e9, 1e9);
+  const DepthTable table = BuildDepthTable(t);
+  const DepthRow& u = RowAt(table, 1000);
+  EXPECT_EQ(u.flags, kNegativeEffectiveStress | kBelowLabRange | kModelUndefined) << FlagsToString(u.flags);
+  EXPECT_TRUE(std::isnan(u.k_dry) && std::isnan(u.alpha) && std::isnan(u.alpha_upper));
+  EXPECT_TRUE(std::isfinite(RowAt(table, 2000).alpha));  // 4 MPa: defined
 }
 
 TEST(DepthTableFlags, DensityLogGapAndFillAreFlaggedBelowThemAndIntegrated) {

@@ -122,6 +122,12 @@ void BandRows(const DepthTableSpec& s, size_t curve, const std::vector<size_t>& 
   const double ks = c.k_s, var_ks = c.sigma_k_s * c.sigma_k_s;
   const Eigen::MatrixXd& cov = f.covariance;
   const auto np = static_cast<Eigen::Index>(f.free_index.size());
+  // The alpha dof is the same at every row when K_s is exact or the rule
+  // ignores it: one quantile then serves them all (same value as per row).
+  const bool one_dof = var_ks == 0 || rule != bands::DeltaQuantile::kWelchSatterthwaite;
+  const double one_q = tq(rule == bands::DeltaQuantile::kNormal ? kInf
+                          : rule == bands::DeltaQuantile::kStudentT ? k_dof
+                                                                    : bands::WelchSatterthwaiteDof(1.0, k_dof, 0.0));
   Eigen::VectorXd g(np), cg_times(np);
   for (size_t i = 0; i < rows_of_curve.size(); ++i) {
     DepthRow& r = rows[rows_of_curve[i]];
@@ -143,7 +149,7 @@ void BandRows(const DepthTableSpec& s, size_t curve, const std::vector<size_t>& 
       case bands::DeltaQuantile::kNormal: dof = kInf; break;
     }
     const double k_half = k_quantile * std::sqrt(var_k);
-    const double a_half = tq(dof) * std::sqrt(v_fit + v_grain);
+    const double a_half = (one_dof ? one_q : tq(dof)) * std::sqrt(v_fit + v_grain);
     r.k_dry = k;
     r.k_dry_lower = k - k_half;
     r.k_dry_upper = k + k_half;
