@@ -83,13 +83,20 @@ DepthTableSpec SpecOf(const Job& j) {
 
 void Run(benchmark::State& state, const DepthTableSpec& s) {
   size_t rows = 0;
+  double iterations = 0;
   for (auto _ : state) {
     DepthTable t = BuildDepthTable(s);
     rows = t.rows.size();
     benchmark::DoNotOptimize(t.rows.back().alpha_upper);
+    state.PauseTiming();
+    iterations = 0;
+    for (const DepthRow& r : t.rows) iterations += r.iterations;
+    state.ResumeTiming();
   }
   if (rows != static_cast<size_t>(kRows)) state.SkipWithError("unexpected row count");
   state.SetItemsProcessed(static_cast<int64_t>(state.iterations()) * static_cast<int64_t>(rows));
+  // Biot fixed-point iterations per row (0 for Terzaghi).
+  state.counters["fp_iter_per_row"] = iterations / static_cast<double>(rows);
 }
 
 void BM_TableTerzaghiMean(benchmark::State& state) {

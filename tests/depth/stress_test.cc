@@ -229,7 +229,7 @@ TEST(DepthStress, AssumptionsStateDatumSourcesMeasureAndBands) {
   for (const char* needle : {"MSL datum", "sea water of 1030 kg/m^3", "constant gradient of", "source: constant gradient",
                              "hydrostatic", "source: hydrostatic sea water", "Terzaghi, n = 1",
                              "vertical effective stress sigma'_v = S_v - 1 P_p", "delta method",
-                             "treated as exact", "fully correlated across depths", "80 %", "10 % and 90 %"})
+                             "treated as exact", "K_s is taken as exact", "80 %", "10 % and 90 %"})
     EXPECT_NE(all.find(needle), std::string::npos) << needle << "\n" << all;
 }
 

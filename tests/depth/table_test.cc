@@ -393,9 +393,13 @@ TEST(DepthTableDepletion, DrawdownRaisesTheEvaluationPressureAndLowersAlpha) {
   const DepthRow& deep = RowAt(table, 7000);
   EXPECT_EQ(deep.flags, 0u);
   EXPECT_EQ(deep.depletion[1].flags, kAboveLabRange);
-  bool stated = false;
-  for (const std::string& a : table.assumptions) stated = stated || a.find("'minus 20 MPa'") != std::string::npos;
+  bool stated = false, correlated = false;
+  for (const std::string& a : table.assumptions) {
+    stated = stated || a.find("'minus 20 MPa'") != std::string::npos;
+    correlated = correlated || a.find("fully correlated across depths") != std::string::npos;
+  }
   EXPECT_TRUE(stated);
+  EXPECT_TRUE(correlated);  // sigma_K_s = 1 GPa here
 }
 
 TEST(DepthTableDepletion, BiotScenariosSolveTheFixedPointAgain) {

@@ -142,8 +142,11 @@ std::vector<std::string> DescribeAssumptions(const DepthTableSpec& s) {
               " non-exceedance values (symmetric about the plug-in value)");
   a.push_back("the evaluation pressure is treated as exact: uncertainty of S_v, P_p, the horizontal-stress "
               "assumption and the Biot fixed point is not in the bands");
-  a.push_back("the K_s variance is in every alpha band and is fully correlated across depths (and across curves "
-              "sharing K_s): alpha bands at different depths are not independent");
+  bool any_sigma = false;
+  for (const FittedCurve& c : s.curves) any_sigma = any_sigma || c.sigma_k_s > 0;
+  a.push_back(any_sigma ? "the K_s variance is in every alpha band and is fully correlated across depths (and across "
+                          "curves sharing K_s): alpha bands at different depths are not independent"
+                        : "K_s is taken as exact (sigma_K_s = 0): the alpha bands hold the fit's uncertainty only");
   a.push_back("K and alpha outside a sample's lab pressure range extrapolate the fitted curve (flags "
               "below-lab-range, above-lab-range); alpha outside [porosity, 1] is flagged, never clipped");
 

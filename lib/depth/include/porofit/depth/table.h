@@ -72,10 +72,12 @@ struct PorePressureSpec {
   double gradient = 0;  ///< kHydrostatic: Pa/m, > 0 (no default: 9.79 fresh water, 10.52 Gulf Coast normal...)
   /// kHydrostatic: depth below datum where P_p = 0 (the water table; for
   /// offshore wells normally the sea surface). NaN: Datum::SurfaceDepth().
+  /// P_p = gradient * (z - zero_depth) below it, 0 above it.
   double zero_depth = std::numeric_limits<double>::quiet_NaN();
   /// kTable / kProfile: (depth m, P_p Pa) pairs, depth strictly ascending,
-  /// linear between; a step outside their range is an InputError (never
-  /// extrapolated). kProfile is a log curve turned into pairs by the caller.
+  /// linear between; a step in rock outside their range is an InputError
+  /// (never extrapolated; steps in water outside it get P_p = NaN). kProfile
+  /// is a log curve turned into pairs by the caller.
   std::vector<double> depth, pressure;
   std::string source;  ///< stated in the header and the pore_pressure_source flag
 };
@@ -132,6 +134,7 @@ struct FaciesRule {
 struct FaciesCurve {
   std::vector<double> depth;  ///< m below datum, ascending
   std::vector<int> code;      ///< facies code at each depth; a step takes the code of the nearest sample at or above it
+                              ///< (steps above the first sample or more than one sampling interval below the last: unmapped)
   std::string source;
 };
 
@@ -167,7 +170,7 @@ enum DepthFlag : std::uint32_t {
   kAboveLabRange = 1u << 1,       ///< above it
   kLogGap = 1u << 2,              ///< the S_v integral crosses bridged or screened log samples
   kLogFill = 1u << 3,             ///< the S_v integral crosses the user's fill trend
-  kAlphaOutsideBounds = 1u << 4,  ///< alpha < phi or alpha > 1 (flagged, never clipped)
+  kAlphaOutsideBounds = 1u << 4,  ///< alpha < phi (alpha < 0 when phi is unknown) or alpha > 1 (flagged, never clipped)
   kFixedPointNotConverged = 1u << 5,
   kUnmapped = 1u << 6,            ///< no interval or facies rule covers the step
   kNegativeEffectiveStress = 1u << 7,  ///< evaluation pressure <= 0 (K evaluated at it only if the model allows)
