@@ -24,6 +24,7 @@
 #include <string>
 #include <vector>
 
+#include "porofit/bands/options.h"
 #include "porofit/depth/profile.h"
 #include "porofit/fit/fit_result.h"
 #include "porofit/models/model.h"
@@ -71,10 +72,12 @@ struct PorePressureSpec {
   double gradient = 0;  ///< kHydrostatic: Pa/m, > 0 (no default: 9.79 fresh water, 10.52 Gulf Coast normal...)
   /// kHydrostatic: depth below datum where P_p = 0 (the water table; for
   /// offshore wells normally the sea surface). NaN: Datum::SurfaceDepth().
+  /// P_p = gradient * (z - zero_depth) below it, 0 above it.
   double zero_depth = std::numeric_limits<double>::quiet_NaN();
   /// kTable / kProfile: (depth m, P_p Pa) pairs, depth strictly ascending,
-  /// linear between; a step outside their range is an InputError (never
-  /// extrapolated). kProfile is a log curve turned into pairs by the caller.
+  /// linear between; a step in rock outside their range is an InputError
+  /// (never extrapolated; steps in water outside it get P_p = NaN). kProfile
+  /// is a log curve turned into pairs by the caller.
   std::vector<double> depth, pressure;
   std::string source;  ///< stated in the header and the pore_pressure_source flag
 };
@@ -131,6 +134,7 @@ struct FaciesRule {
 struct FaciesCurve {
   std::vector<double> depth;  ///< m below datum, ascending
   std::vector<int> code;      ///< facies code at each depth; a step takes the code of the nearest sample at or above it
+                              ///< (steps above the first sample or more than one sampling interval below the last: unmapped)
   std::string source;
 };
 
@@ -152,6 +156,11 @@ struct DepthTableSpec {
   std::optional<FaciesCurve> facies;
   std::vector<FaciesRule> facies_rules;
   double band_level = 0.80;  ///< two-sided level of the K and alpha bands, in (0, 1)
+  /// Quantile rule of the alpha band (extension; same meaning and default as
+  /// bands::BandOptions::delta_quantile, so a table row at a lab pressure
+  /// reproduces the sample's delta-method alpha confidence band). The K band
+  /// uses t(n - p) (z for kNormal or an unscaled covariance), as lib/bands does.
+  bands::DeltaQuantile band_quantile = bands::DeltaQuantile::kWelchSatterthwaite;
   std::vector<DepletionScenario> depletion;
 };
 
@@ -161,7 +170,7 @@ enum DepthFlag : std::uint32_t {
   kAboveLabRange = 1u << 1,       ///< above it
   kLogGap = 1u << 2,              ///< the S_v integral crosses bridged or screened log samples
   kLogFill = 1u << 3,             ///< the S_v integral crosses the user's fill trend
-  kAlphaOutsideBounds = 1u << 4,  ///< alpha < phi or alpha > 1 (flagged, never clipped)
+  kAlphaOutsideBounds = 1u << 4,  ///< alpha < phi (alpha < 0 when phi is unknown) or alpha > 1 (flagged, never clipped)
   kFixedPointNotConverged = 1u << 5,
   kUnmapped = 1u << 6,            ///< no interval or facies rule covers the step
   kNegativeEffectiveStress = 1u << 7,  ///< evaluation pressure <= 0 (K evaluated at it only if the model allows)
@@ -208,6 +217,9 @@ struct DepthTable {
   /// method, K_s variance included, pressure treated as exact), the mapping.
   std::vector<std::string> assumptions;
   int fixed_point_failures = 0;  ///< rows with kFixedPointNotConverged
+  /// Extension: depletion values (over all rows and scenarios) with
+  /// kFixedPointNotConverged; they are not counted in fixed_point_failures.
+  int depletion_fixed_point_failures = 0;
 };
 
 /// Builds the table. Throws InputError for an inconsistent spec (step <= 0,
@@ -228,5 +240,24 @@ struct FixedPointResult {
 };
 FixedPointResult SolveBiotFixedPoint(const FittedCurve& curve, double total, double pore, double tolerance,
                                      int max_iterations);
+
+// Extensions: the small stress relations the table uses, exposed for tests
+// and for callers that state them.
+
+/// nu/(1 - nu): sigma'_h/sigma'_v under uniaxial strain (Eaton 1969, JPT 21,
+/// with n = 1; poroelastic form S_h - alpha P_p = nu/(1 - nu)(S_v - alpha P_p)
+/// as in Zoback 2007, Reservoir Geomechanics). poisson in (0, 0.5).
+double UniaxialStrainRatio(double poisson);
+
+/// Total horizontal stress from an effective-stress ratio:
+/// S_h = ratio (S_v - n P_p) + n P_p (Pa). With ratio = nu/(1 - nu) and
+/// n = alpha, dS_h/d alpha = P_p (1 - 2 nu)/(1 - nu).
+double TotalHorizontalStress(double vertical_stress, double pore_pressure, double n, double ratio);
+
+/// The factor c with evaluation pressure = c (S_v - n P_p): 1 for
+/// kVerticalEffective; (1 + ratio + ratio_max)/3 for the mean with a ratio
+/// (ratio_max NaN: ratio); (1 + nu)/(3 (1 - nu)) for the mean under uniaxial
+/// strain. The spec is not validated here (BuildDepthTable does).
+double EvaluationFactor(const StressSpec& stress);
 
 }  // namespace porofit::depth
