@@ -11,6 +11,13 @@
 // dot, first space after it, last colon). Wrapped data put the index alone on
 // a line. Depth units M, F or FT.
 //
+// Output order: the index must be strictly monotonic; a file whose index
+// decreases is reversed on reading, so every LasCurve ascends in depth
+// (LasFile::reversed records it). STRT and STOP must agree with the first and
+// last index value as written, to 1e-6 of the largest |STRT|, |STOP| (at
+// least 5e-5 in file units); a regular STEP must place every index value
+// within 1% of STEP of STRT + i*STEP. NULL is matched to 1e-6 relative.
+//
 // Failure: any violation of the standard that makes the file ambiguous throws
 // porofit::InputError with the file path and the 1-based line (and column
 // where it helps) and the rule broken. Tolerated departures (unknown ~W
@@ -52,6 +59,11 @@ struct LasFile {
   std::vector<LasCurve> curves;
   std::string index_unit;
   int data_line = 0;  ///< 1-based line of the ~A section header
+  /// Extension: 1-based line of the ~C section header (named when a curve is missing).
+  int curve_section_line = 0;
+  /// Extension: true when the file's index decreased; the curves above were
+  /// then reversed so that they ascend in depth.
+  bool reversed = false;
 
   /// The curve whose mnemonic equals `mnemonic` (case-insensitive), or nullptr.
   const LasCurve* Find(const std::string& mnemonic) const;
