@@ -24,6 +24,7 @@
 #include <string>
 #include <vector>
 
+#include "porofit/bands/options.h"
 #include "porofit/depth/profile.h"
 #include "porofit/fit/fit_result.h"
 #include "porofit/models/model.h"
@@ -152,6 +153,11 @@ struct DepthTableSpec {
   std::optional<FaciesCurve> facies;
   std::vector<FaciesRule> facies_rules;
   double band_level = 0.80;  ///< two-sided level of the K and alpha bands, in (0, 1)
+  /// Quantile rule of the alpha band (extension; same meaning and default as
+  /// bands::BandOptions::delta_quantile, so a table row at a lab pressure
+  /// reproduces the sample's delta-method alpha confidence band). The K band
+  /// uses t(n - p) (z for kNormal or an unscaled covariance), as lib/bands does.
+  bands::DeltaQuantile band_quantile = bands::DeltaQuantile::kWelchSatterthwaite;
   std::vector<DepletionScenario> depletion;
 };
 
@@ -208,6 +214,9 @@ struct DepthTable {
   /// method, K_s variance included, pressure treated as exact), the mapping.
   std::vector<std::string> assumptions;
   int fixed_point_failures = 0;  ///< rows with kFixedPointNotConverged
+  /// Extension: depletion values (over all rows and scenarios) with
+  /// kFixedPointNotConverged; they are not counted in fixed_point_failures.
+  int depletion_fixed_point_failures = 0;
 };
 
 /// Builds the table. Throws InputError for an inconsistent spec (step <= 0,
@@ -228,5 +237,24 @@ struct FixedPointResult {
 };
 FixedPointResult SolveBiotFixedPoint(const FittedCurve& curve, double total, double pore, double tolerance,
                                      int max_iterations);
+
+// Extensions: the small stress relations the table uses, exposed for tests
+// and for callers that state them.
+
+/// nu/(1 - nu): sigma'_h/sigma'_v under uniaxial strain (Eaton 1969, JPT 21,
+/// with n = 1; poroelastic form S_h - alpha P_p = nu/(1 - nu)(S_v - alpha P_p)
+/// as in Zoback 2007, Reservoir Geomechanics). poisson in (0, 0.5).
+double UniaxialStrainRatio(double poisson);
+
+/// Total horizontal stress from an effective-stress ratio:
+/// S_h = ratio (S_v - n P_p) + n P_p (Pa). With ratio = nu/(1 - nu) and
+/// n = alpha, dS_h/d alpha = P_p (1 - 2 nu)/(1 - nu).
+double TotalHorizontalStress(double vertical_stress, double pore_pressure, double n, double ratio);
+
+/// The factor c with evaluation pressure = c (S_v - n P_p): 1 for
+/// kVerticalEffective; (1 + ratio + ratio_max)/3 for the mean with a ratio
+/// (ratio_max NaN: ratio); (1 + nu)/(3 (1 - nu)) for the mean under uniaxial
+/// strain. The spec is not validated here (BuildDepthTable does).
+double EvaluationFactor(const StressSpec& stress);
 
 }  // namespace porofit::depth
