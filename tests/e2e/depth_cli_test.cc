@@ -16,6 +16,9 @@
 
 #include <nlohmann/json.hpp>
 
+#include "porofit/io/study_loader.h"
+#include "porofit/run/run.h"
+
 namespace porofit {
 namespace {
 
@@ -112,6 +115,51 @@ TEST_F(DepthCli, ResultsJsonAndSummaryCarryTheTable) {
       << out;
   EXPECT_NE(out.find("depth_QV-14.csv"), std::string::npos);
   EXPECT_TRUE(fs::exists(dir_ / "out" / "summary.txt"));
+}
+
+
+// Study keys -> loader -> run -> engine on the offshore column of the domain
+// brief §8 check value 20 [computed]: 1000 m of sea water (1.03 g/cc) over
+// 2000 m of rock at 2.30 g/cc: S_v 55.21 MPa at 3000 m TVDSS, hydrostatic P_p
+// (1.03 g/cc) 30.30 MPa, sigma'_v 24.91 MPa; with k = 0.6, sigma'_m 18.27 MPa.
+TEST(DepthStudy, OffshoreColumnThroughTheStudyKeysMatchesCheckValue20) {
+  const char* const text = R"(name: check value 20 (invented)
+samples:
+  - id: S1
+    lithology: sandstone
+    porosity: 0.2
+    bulk_density: 2.2 g/cc
+    measurement: static
+    data: {columns: [P MPa, K GPa], rows: [[5, 9.1], [10, 11.8], [20, 14.9], [30, 16.3], [40, 17.2], [50, 17.6]]}
+    models: [exp-modulus]
+    grain_modulus: {measured: {K_s: 37 GPa, sigma: 1 GPa, source: invented}}
+depth_tables:
+  - name: cv20
+    units: si
+    datum: {reference: MSL, water_depth: 1000 m, water_density: 1.03 g/cc}
+    depths: {top: 2000 m, base: 3000 m, step: 500 m}
+    overburden: {layers: [{base: 3000 m, density: 2.30 g/cc}]}
+    pore_pressure: {hydrostatic: 1.03 g/cc}
+    stress: {measure: mean, law: terzaghi, horizontal: {ratio: 0.6}}
+    intervals: [{top: 1000 m, base: 3001 m, sample: S1, model: exp-modulus}]
+    bands: {level: 80 %, convention: exceedance}
+)";
+  const Study study = ParseStudy(text, "mem/cv20.yaml", ModelRegistry::Builtin());
+  RunOptions o;
+  o.timestamp_utc = "2026-02-03T04:05:06Z";
+  const StudyRun run = RunStudy(study, o);
+  ASSERT_EQ(run.depth_tables.size(), 1u);
+  ASSERT_TRUE(run.depth_tables[0].computed) << run.depth_tables[0].message;
+  const auto& rows = run.depth_tables[0].table.rows;
+  ASSERT_EQ(rows.size(), 3u);
+  const auto& r = rows[2];
+  EXPECT_DOUBLE_EQ(r.depth, 3000.0);
+  EXPECT_NEAR(r.vertical_stress / 1e6, 55.21, 0.005);
+  EXPECT_NEAR(r.pore_pressure / 1e6, 30.30, 0.005);
+  EXPECT_NEAR((r.vertical_stress - r.pore_pressure) / 1e6, 24.91, 0.005);
+  EXPECT_NEAR(r.evaluation_pressure / 1e6, 18.27, 0.005);
+  EXPECT_EQ(r.flags, 0u);
+  EXPECT_GT(r.alpha, r.alpha_lower);
 }
 
 }  // namespace
