@@ -10,7 +10,8 @@ sandstone K_inf 5-30 GPa, P* 3-30 MPa) and the noise levels follow its
 typical uncertainties (§2: static K 3-10 %, Vp 0.5-1 %, Vs 1-2 %).
 
 Run from anywhere with:  /usr/bin/python3 samples/generate.py [OUTPUT_DIR]
-Outputs (overwritten): samples/invented-field-study.yaml, samples/data/*.csv
+Outputs (overwritten): samples/invented-field-study.yaml, samples/data/*.csv,
+samples/data/QV-14-density.las
 (or the same names under OUTPUT_DIR).
 Same seed, same files: the outputs are committed and must not be edited by hand.
 """
@@ -453,6 +454,89 @@ samples:
 {inline_rows(rows_2551)}    models: [exp-modulus, linear, power-offset]
     grain_modulus: none
 """
+# ------------------------------------------------------- invented density log
+# An invented LAS 2.0 density log of well QV-14 for the depth table: index is
+# measured depth below the kelly bushing (KB 25 m above sea level, vertical
+# hole, so TVD = MD), RHOB rising from 2.12 to 2.46 g/cc with 0.015 g/cc
+# noise, a NULL run (2060-2080 m, a tool stop) and a washout (2490-2500 m)
+# where DRHO exceeds 0.1 g/cc. A separate seeded generator, so the plug data
+# above are unchanged.
+log_rng = np.random.default_rng(SEED + 14)
+las_rows = []
+for i in range(int((3300 - 1400) / 2) + 1):
+    md = 1400.0 + 2.0 * i
+    rho = 2.12 + 0.34 * (md - 1400.0) / 1900.0 + log_rng.normal(0.0, 0.015)
+    drho = log_rng.normal(0.0, 0.01)
+    if 2490.0 <= md <= 2500.0:
+        drho = 0.16 + abs(drho)  # washout: the correction curve flags bad hole
+        rho -= 0.25
+    if 2060.0 <= md <= 2080.0:
+        rho, drho = -999.25, -999.25
+    las_rows.append((md, rho, drho))
+las = (
+    "# INVENTED density log for the demonstration study - not real data\n"
+    "# (samples/generate.py, seed " + str(SEED + 14) + ")\n"
+    "~VERSION INFORMATION\n"
+    " VERS.                 2.0 : CWLS LOG ASCII STANDARD - VERSION 2.0\n"
+    " WRAP.                  NO : ONE LINE PER DEPTH STEP\n"
+    "~WELL INFORMATION\n"
+    " STRT.M             1400.0 : START DEPTH\n"
+    " STOP.M             3300.0 : STOP DEPTH\n"
+    " STEP.M                2.0 : STEP\n"
+    " NULL.             -999.25 : NULL VALUE\n"
+    " COMP.   INVENTED OPERATOR : COMPANY\n"
+    " WELL.        QV-14 (INVENTED) : WELL\n"
+    " FLD .   QUORVANE (INVENTED) : FIELD\n"
+    " LOC .               NONE : LOCATION\n"
+    " CTRY.               NONE : COUNTRY\n"
+    " SRVC.   INVENTED SERVICES : SERVICE COMPANY\n"
+    " DATE.          2026-12-01 : LOG DATE\n"
+    " UWI .               NONE : UNIQUE WELL ID\n"
+    "~CURVE INFORMATION\n"
+    " DEPT.M                    : MEASURED DEPTH BELOW KB\n"
+    " RHOB.G/C3                 : BULK DENSITY\n"
+    " DRHO.G/C3                 : DENSITY CORRECTION\n"
+    "~PARAMETER INFORMATION\n"
+    " EKB .M               25.0 : KELLY BUSHING ABOVE SEA LEVEL\n"
+    "~A  DEPT      RHOB      DRHO\n"
+)
+for md, rho, drho in las_rows:
+    las += f"{md:8.1f} {rho:9.4f} {drho:9.4f}\n"
+with open(os.path.join(DATA, "QV-14-density.las"), "w", newline="\n") as f:
+    f.write(las)
+
+study += """
+# Alpha against depth for well QV-14 (INVENTED scenario): offshore, 850 m of
+# sea water, mean effective stress with the Biot law, the invented density
+# log above (its NULL run bridged and its washout screened, both flagged; a
+# stated fill trend from the mudline to the log top) and one depletion case.
+# Every assumption below is the demonstration's choice, not a default.
+depth_tables:
+  - name: QV-14
+    units: field
+    datum: {reference: MSL, water_depth: 850 m, water_density: 1.03 g/cc}
+    depths: {top: 1400 m, base: 3200 m, step: 10 m}
+    overburden:
+      log:
+        file: data/QV-14-density.las
+        curve: RHOB
+        index_offset: -25 m            # log depths are below KB, 25 m above MSL
+        correction_curve: DRHO
+        correction_limit: 0.1 g/cc
+        fill_above: [{depth: 850 m, density: 1.75 g/cc}, {depth: 1375 m, density: 2.10 g/cc}]
+    pore_pressure: {hydrostatic: 10.1 kPa/m}   # normally pressured, from the sea surface
+    stress:
+      measure: mean
+      law: biot
+      horizontal: {ratio: 0.6}
+    intervals:
+      - {top: 1400 m, base: 2100 m, sample: QV14-2544V, model: exp-modulus}
+      - {top: 2100 m, base: 2700 m, sample: QV14-2231V, model: exp-modulus}
+      - {top: 2700 m, base: 3210 m, sample: QV14-2318H, model: exp-modulus}   # [top, base): past the last row
+    bands: {level: 0.80, convention: non-exceedance}
+    depletion: [{name: 10 MPa drawdown, drop: 10 MPa}]
+"""
+
 with open(os.path.join(HERE, "invented-field-study.yaml"), "w", newline="\n") as f:
     f.write(study)
 print("wrote", os.path.join(HERE, "invented-field-study.yaml"))

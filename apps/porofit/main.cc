@@ -169,7 +169,7 @@ int CmdFit(const std::vector<std::string>& args, const std::string& command_line
   if (!quiet) {
     std::cout << result.summary;
     std::cout << "\nwrote";
-    const auto names = porofit::ReportFileNames();
+    const auto names = porofit::ReportFileNames(study);
     for (size_t i = 0; i < names.size(); ++i) std::cout << (i ? ", " : " ") << names[i];
     std::cout << " to " << out_dir << "\n";
   }

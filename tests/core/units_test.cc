@@ -27,4 +27,38 @@ TEST(Units, UnknownUnitIsRejectedAndListed) {
   EXPECT_EQ(AcceptedUnitsList(Quantity::kVelocity), "m/s, km/s, ft/s");
 }
 
+// Gradient factors: domain brief §8 check value 8 [computed] -- 1 psi/ft = 22.6206 kPa/m,
+// which corresponds to 2.3067 g/cc; 1 g/cc -> 9.80665 kPa/m = 0.43353 psi/ft;
+// 0.465 psi/ft = 10.5186 kPa/m; 1 ppg = 0.051948 psi/ft.
+TEST(Units, GradientFactorsMatchCheckValue8) {
+  const double psi_ft = *ToSiFactor(Quantity::kPressureGradient, "psi/ft");
+  const double g_cc = *ToSiFactor(Quantity::kPressureGradient, "g/cc");
+  const double ppg = *ToSiFactor(Quantity::kPressureGradient, "ppg");
+  const double kpa_m = *ToSiFactor(Quantity::kPressureGradient, "kPa/m");
+  EXPECT_NEAR(psi_ft / kpa_m, 22.6206, 5e-5);
+  EXPECT_NEAR(psi_ft / g_cc, 2.3067, 5e-5);
+  EXPECT_NEAR(g_cc / kpa_m, 9.80665, 1e-12);
+  EXPECT_NEAR(g_cc / psi_ft, 0.43353, 5e-6);
+  EXPECT_NEAR(0.465 * psi_ft / kpa_m, 10.5186, 5e-5);
+  EXPECT_NEAR(ppg / psi_ft, 0.051948, 5e-7);
+  EXPECT_DOUBLE_EQ(*ToSiFactor(Quantity::kPressureGradient, "MPa/km"), 1e3);
+  EXPECT_DOUBLE_EQ(*ToSiFactor(Quantity::kPressureGradient, "MPa/m"), 1e6);
+}
+
+// 1 lb = 0.45359237 kg and 1 US gal = 3.785411784e-3 m^3 (exact by definition;
+// common practice): 1 ppg = 119.8264 kg/m^3 [computed].
+TEST(Units, LengthAndPpgDensity) {
+  EXPECT_DOUBLE_EQ(*ToSiFactor(Quantity::kLength, "ft"), 0.3048);
+  EXPECT_DOUBLE_EQ(*ToSiFactor(Quantity::kLength, "km"), 1000.0);
+  EXPECT_NEAR(*ToSiFactor(Quantity::kDensity, "ppg"), 119.8264, 5e-5);
+  EXPECT_EQ(AcceptedUnitsList(Quantity::kLength), "m, km, ft");
+  EXPECT_EQ(SiUnit(Quantity::kPressureGradient), "Pa/m");
+}
+
+TEST(Units, PressureUnitIsNotAGradient) {
+  EXPECT_FALSE(ToSiFactor(Quantity::kPressureGradient, "psi").has_value());
+  EXPECT_FALSE(ToSiFactor(Quantity::kPressureGradient, "MPa").has_value());
+  EXPECT_FALSE(ToSiFactor(Quantity::kLength, "psi/ft").has_value());
+}
+
 }  // namespace porofit::units

@@ -17,6 +17,7 @@
 
 #include "porofit/io/study_loader.h"
 #include "porofit/models/registry.h"
+#include "porofit/report/report.h"
 #include "porofit/report/sha256.h"
 #include "porofit/version.h"
 
@@ -84,6 +85,7 @@ const std::vector<std::string> kReportFiles = {"summary.txt", "parameters.csv", 
                                                "residuals.csv", "alpha.csv",        "grain_modulus.csv",
                                                "alpha_vti.csv", "moduli.csv", "strain_residuals.csv", "comparison.csv", "nested_tests.csv",
                                                "comparison_groups.csv", "branch_tests.csv", "hysteresis.csv", "joint_fits.csv", "joint_tests.csv", "joint_alpha.csv",
+                                               "depth_QV-14.csv",  // the sample study's depth table
                                                "results.json"};
 
 // ---------------------------------------------------------------- command line
@@ -183,6 +185,7 @@ TEST(SampleStudy, FitWritesEveryFileAndTheSummaryShowsEverySample) {
   EXPECT_EQ(r.err, "");  // nothing from the solver's logging either
   for (const std::string& f : kReportFiles) EXPECT_TRUE(fs::is_regular_file(out / f)) << f;
   const Study study = LoadStudy(POROFIT_SAMPLE_STUDY);
+  EXPECT_EQ(ReportFileNames(study), kReportFiles);  // the fixed files plus one per depth table
   ASSERT_FALSE(study.samples.empty());
   for (const StudySample& ss : study.samples) {
     EXPECT_NE(r.out.find("Sample " + ss.sample.id), std::string::npos) << ss.sample.id;
@@ -193,7 +196,7 @@ TEST(SampleStudy, FitWritesEveryFileAndTheSummaryShowsEverySample) {
   EXPECT_EQ(Slurp(out / "summary.txt") +
                 "\nwrote summary.txt, parameters.csv, fits.csv, residuals.csv, alpha.csv, grain_modulus.csv, "
                 "alpha_vti.csv, moduli.csv, strain_residuals.csv, comparison.csv, nested_tests.csv, comparison_groups.csv, "
-                "branch_tests.csv, hysteresis.csv, joint_fits.csv, joint_tests.csv, joint_alpha.csv, results.json to " +
+                "branch_tests.csv, hysteresis.csv, joint_fits.csv, joint_tests.csv, joint_alpha.csv, depth_QV-14.csv, results.json to " +
                 out.string() + "\n",
             r.out);
   // Only the report files: no staging folder left next to it.

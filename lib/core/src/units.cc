@@ -20,7 +20,15 @@ const std::vector<Entry>& Table(Quantity q) {
       {"m/s", 1.0, true}, {"km/s", 1e3, true}, {"ft/s", kFoot, true}};
   static const std::vector<Entry> density = {
       {"kg/m3", 1.0, true},  {"kg/m³", 1.0, false}, {"kg/m^3", 1.0, false},
-      {"g/cc", 1e3, true},   {"g/cm3", 1e3, false}, {"g/cm³", 1e3, false}};
+      {"g/cc", 1e3, true},   {"g/cm3", 1e3, false}, {"g/cm³", 1e3, false},
+      {"ppg", kPpg, true}};
+  static const std::vector<Entry> length = {{"m", 1.0, true}, {"km", 1e3, true}, {"ft", kFoot, true}};
+  // Density-equivalent gradients: rho * g (hydrostatic gradient of a fluid of that density).
+  static const std::vector<Entry> gradient = {
+      {"Pa/m", 1.0, true},          {"kPa/m", 1e3, true},
+      {"MPa/m", 1e6, true},         {"MPa/km", 1e3, true},
+      {"psi/ft", kPsi / kFoot, true}, {"g/cc", 1e3 * kStandardGravity, true},
+      {"g/cm3", 1e3 * kStandardGravity, false}, {"ppg", kPpg * kStandardGravity, true}};
   static const std::vector<Entry> dimensionless = {
       {"1", 1.0, true}, {"fraction", 1.0, true}, {"%", 0.01, true}};
   switch (q) {
@@ -29,6 +37,8 @@ const std::vector<Entry>& Table(Quantity q) {
     case Quantity::kVelocity: return velocity;
     case Quantity::kDensity: return density;
     case Quantity::kDimensionless: return dimensionless;
+    case Quantity::kLength: return length;
+    case Quantity::kPressureGradient: return gradient;
   }
   return dimensionless;
 }
@@ -42,6 +52,8 @@ std::string_view SiUnit(Quantity q) {
     case Quantity::kVelocity: return "m/s";
     case Quantity::kDensity: return "kg/m3";
     case Quantity::kDimensionless: return "1";
+    case Quantity::kLength: return "m";
+    case Quantity::kPressureGradient: return "Pa/m";
   }
   return "";
 }
@@ -53,6 +65,8 @@ std::string_view QuantityName(Quantity q) {
     case Quantity::kVelocity: return "velocity";
     case Quantity::kDensity: return "density";
     case Quantity::kDimensionless: return "dimensionless";
+    case Quantity::kLength: return "length";
+    case Quantity::kPressureGradient: return "pressure gradient";
   }
   return "";
 }

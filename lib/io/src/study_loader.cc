@@ -18,6 +18,7 @@
 #include "branch_settings.h"
 #include "scalar.h"
 #include "study_joint.h"
+#include "study_depth.h"
 #include "study_comparison.h"
 #include "study_user_models.h"
 #include "strain_columns.h"
@@ -846,6 +847,7 @@ Study Loader::Parse(std::string_view text) {
         joint_fits = top.Get("joint_fits"), user_models = top.Get("user_models"),
         sample_table = top.Get("sample_table");
   Field comparison = top.Get("comparison");
+  Field depth_tables = top.Get("depth_tables");
   top.Finish();
   if (version && version.Integer() != 1)
     throw InputError(version.at, "version = " + version.Scalar() + " is not supported (this loader reads version 1)");
@@ -921,6 +923,8 @@ Study Loader::Parse(std::string_view text) {
                              " states no grain_modulus; this study computes alpha, so give one (measured, "
                              "mineralogy or a group name) or 'none' (K_s is never defaulted)");
   }
+  if (depth_tables)  // after the samples and their grain moduli, which the tables name
+    study_.depth_tables = io::detail::ReadDepthTables(depth_tables, file_, study_.samples, study_.inputs);
   return std::move(study_);
 }
 

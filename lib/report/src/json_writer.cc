@@ -512,6 +512,7 @@ void AddResultsJsonTail(const StudyRun& run, Json& j) {
   j["alpha_notes"] = {detail::CorrelationCaveat()};
   j["branches"] = detail::BranchesJson(run);
   j["joint_fits"] = JointFitsJson(run);
+  j["depth_tables"] = DepthTablesJson(run);
 }
 
 Json ResultsJson(const StudyRun& run, const std::vector<InputDigest>& inputs, const ReportOptions& options) {

@@ -22,6 +22,14 @@ std::vector<std::string> ReportFileNames() {
           "joint_fits.csv", "joint_tests.csv", "joint_alpha.csv", "results.json"};
 }
 
+std::vector<std::string> ReportFileNames(const Study& study) {
+  std::vector<std::string> names = ReportFileNames();
+  std::vector<std::string> depth;
+  for (const DepthTableChoice& t : study.depth_tables) depth.push_back(DepthTableFileName(t));
+  names.insert(names.end() - 1, depth.begin(), depth.end());  // before results.json, in writing order
+  return names;
+}
+
 void WriteReportFolder(const StudyRun& run, const std::filesystem::path& folder,
                        const AtomicFolderOptions& folder_options, const ReportOptions& options) {
   // Digest before writing anything: an unreadable input stops the run with
@@ -52,6 +60,8 @@ void WriteReportFolder(const StudyRun& run, const std::filesystem::path& folder,
         emit("joint_fits.csv", [&](std::ostream& o) { WriteJointFitsCsv(run, o); });
         emit("joint_tests.csv", [&](std::ostream& o) { WriteJointTestsCsv(run, o); });
         emit("joint_alpha.csv", [&](std::ostream& o) { WriteJointAlphaCsv(run, o); });
+        for (size_t t = 0; t < run.study.depth_tables.size(); ++t)
+          emit(DepthTableFileName(run.study.depth_tables[t]), [&](std::ostream& o) { WriteDepthTableCsv(run, t, o); });
         emit("results.json", [&](std::ostream& o) { WriteResultsJson(run, inputs, o, options); });
       },
       folder_options);

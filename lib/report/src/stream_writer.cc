@@ -121,8 +121,9 @@ class StreamWriter {
     }
     Tally(ss, sr);
     accumulator_.Add(i, SampleFieldValues(ss.sample), sr.comparison);
-    // Branch tests need the fits of every sample of a plug; nothing else is kept.
-    if (!ss.sample.plug.empty()) kept_fits_.emplace(i, sr.fits);
+    // Branch tests need the fits of every sample of a plug, depth tables those
+    // of the samples they name; nothing else is kept.
+    if (!ss.sample.plug.empty() || UsedByDepthTables(study_, i)) kept_fits_.emplace(i, sr.fits);
   }
 
   std::string Finish() {
@@ -139,6 +140,8 @@ class StreamWriter {
     across.comparison_summary = accumulator_.Finish();
     across.branches = RunBranches(study_, across.samples, *registry_);
     for (const JointFitChoice& j : study_.joint_fits) across.joint_fits.push_back(RunJoint(study_, j, *registry_));
+    for (const DepthTableChoice& t : study_.depth_tables)
+      across.depth_tables.push_back(RunDepthTable(study_, t, across.samples, *registry_));
     auto whole = [&](const std::string& name, auto&& writer) {
       std::ostringstream o;
       writer(o);
@@ -150,6 +153,8 @@ class StreamWriter {
     whole("joint_fits.csv", [&](std::ostream& o) { WriteJointFitsCsv(across, o); });
     whole("joint_tests.csv", [&](std::ostream& o) { WriteJointTestsCsv(across, o); });
     whole("joint_alpha.csv", [&](std::ostream& o) { WriteJointAlphaCsv(across, o); });
+    for (size_t t = 0; t < across.depth_tables.size(); ++t)
+      whole(DepthTableFileName(study_.depth_tables[t]), [&](std::ostream& o) { WriteDepthTableCsv(across, t, o); });
 
     json_.out() << (written_ == 0 ? "[]" : "\n  ]") << JsonAround(across).second;
     for (Appender* a : {&parameters_, &fits_, &residuals_, &alpha_, &grain_, &vti_, &moduli_, &strain_residuals_,

@@ -206,6 +206,7 @@ void WriteSummaryAcross(const StudyRun& run, std::ostream& out) {
   detail::WriteComparisonGroupTable(run, out);
   detail::WriteBranchSummary(run, out);
   WriteJointSummary(run, out);
+  WriteDepthSummary(run, out);
 }
 
 void WriteSummary(const StudyRun& run, std::ostream& out) {

@@ -328,6 +328,8 @@ StudyRun RunStudy(const Study& study, const RunOptions& options) {
   run.comparison_summary = SummarizeComparisons(run);
   run.branches = RunBranches(study, run.samples, registry);  // after every per-sample fit
   for (const JointFitChoice& j : study.joint_fits) run.joint_fits.push_back(RunJoint(study, j, registry));
+  for (const DepthTableChoice& t : study.depth_tables)
+    run.depth_tables.push_back(RunDepthTable(study, t, run.samples, registry));
   run.metadata.wall_seconds =
       std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
   return run;

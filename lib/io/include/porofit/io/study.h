@@ -13,6 +13,7 @@
 #include "porofit/core/sample.h"
 #include "porofit/fit/fit_options.h"
 #include "porofit/fit/fitter.h"
+#include "porofit/io/depth_choice.h"
 #include "porofit/poro/minerals.h"
 #include "porofit/poro/mixing.h"
 
@@ -130,6 +131,8 @@ struct Study {
   BranchTestSettings branch_tests;  ///< settings of the branch tests (defaults when not given)
   /// Joint fits across samples (`joint_fits:`), in file order; run after the per-sample fits.
   std::vector<JointFitChoice> joint_fits;
+  /// Alpha-versus-depth tables (`depth_tables:`), in file order; computed after the per-sample fits.
+  std::vector<DepthTableChoice> depth_tables;
   /// Minerals the study's `minerals:` section adds to or overrides in
   /// poro::MineralTable::Builtin(), in name order.
   std::vector<poro::Mineral> mineral_overrides;

@@ -32,7 +32,8 @@ namespace porofit {
 /// 2: adds per-sample "grain_modulus", "fluid_modulus", "band_settings",
 /// "vti_alpha", per-fit "alpha", top-level "mineral_overrides" and "alpha_notes".
 /// 3: adds per-sample "comparison" and top-level "comparison_summary".
-inline constexpr int kResultsSchemaVersion = 3;
+/// 4: adds top-level "depth_tables" (alpha-versus-depth tables, lib/report/src/depth_writer.cc).
+inline constexpr int kResultsSchemaVersion = 4;
 
 /// An input file with its digest, for provenance.
 struct InputDigest {
@@ -106,6 +107,19 @@ nlohmann::ordered_json JointFitsJson(const StudyRun& run);
 /// The joint-fit lines of the terminal summary (nothing without joint fits).
 void WriteJointSummary(const StudyRun& run, std::ostream& out);
 
+/// depth_<name>.csv of Study::depth_tables[table]: '#' header lines with every
+/// assumption, the datum, the units, the band convention and the cautions,
+/// then one row per depth step in the table's output units (a table not
+/// computed has its reason in the header and no rows).
+/// lib/report/src/depth_writer.cc; layout in docs/outputs.md.
+void WriteDepthTableCsv(const StudyRun& run, size_t table, std::ostream& out);
+/// "depth_<name>.csv".
+std::string DepthTableFileName(const DepthTableChoice& table);
+/// The "depth_tables" array of results.json (m, MPa, GPa in the field names).
+nlohmann::ordered_json DepthTablesJson(const StudyRun& run);
+/// The depth-table lines of the terminal summary (nothing without tables).
+void WriteDepthSummary(const StudyRun& run, std::ostream& out);
+
 /// results.json as a value (ordered keys). NaN and infinities become null
 /// when dumped.
 nlohmann::ordered_json ResultsJson(const StudyRun& run, const std::vector<InputDigest>& inputs,
@@ -118,8 +132,11 @@ void WriteResultsJson(const StudyRun& run, const std::vector<InputDigest>& input
 /// lowest-AICc model, and the caution lines.
 void WriteSummary(const StudyRun& run, std::ostream& out);
 
-/// Names of the files WriteReportFolder() creates, in writing order.
+/// Names of the files WriteReportFolder() creates for every study, in writing order.
 std::vector<std::string> ReportFileNames();
+/// All files written for `study`: ReportFileNames() plus one depth_<name>.csv
+/// per depth table (before results.json), in writing order.
+std::vector<std::string> ReportFileNames(const Study& study);
 
 /// Digests the inputs and writes every report file into `folder` atomically
 /// (WriteFolderAtomically). Throws OutputError / InputError; on failure no

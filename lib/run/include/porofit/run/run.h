@@ -24,6 +24,7 @@
 #include "porofit/io/study.h"
 #include "porofit/models/registry.h"
 #include "porofit/run/branches.h"
+#include "porofit/run/depth_run.h"
 
 namespace porofit {
 
@@ -158,6 +159,7 @@ struct StudyRun {
   /// two or more samples of one kind; porofit/run/branches.h).
   std::vector<BranchSetRun> branches;
   std::vector<JointRun> joint_fits;  ///< parallel to study.joint_fits
+  std::vector<DepthTableRun> depth_tables;  ///< parallel to study.depth_tables (porofit/run/depth_run.h)
   RunMetadata metadata;
   /// Model comparison across samples, grouped by Study::comparison.group_by.
   compare::ComparisonSummary comparison_summary;
