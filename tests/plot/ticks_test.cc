@@ -48,6 +48,14 @@ TEST(MakeTicks, LogRangeInsideOneDecadeStillHasLabelledTicks) {
   EXPECT_EQ(t.labels, (std::vector<std::string>{"2", "5"}));
 }
 
+TEST(MakeTicks, NarrowLogRangeSnapsToOneTwoFiveMultiples) {
+  const auto t = MakeTicks(1000, 3000, Scale::kLog, true);
+  EXPECT_DOUBLE_EQ(t.lo, 1000);
+  EXPECT_DOUBLE_EQ(t.hi, 5000);
+  EXPECT_EQ(t.labels, (std::vector<std::string>{"1000", "2000", "5000"}));
+  EXPECT_EQ(t.minor.size(), 4u);  // 2000, 3000, 4000, 5000
+}
+
 TEST(MakeTicks, NegativeRangeSnapsOutward) {
   const auto t = MakeTicks(-7.3, -2.1, Scale::kLinear, true);
   EXPECT_DOUBLE_EQ(t.lo, -8);

@@ -4,6 +4,8 @@
 #include <cmath>
 #include <stdexcept>
 #include <string>
+#include <utility>
+#include <vector>
 
 namespace porofit::plot {
 namespace {
@@ -42,15 +44,44 @@ void LinearTicks(double lo, double hi, bool snap, int target, TickSet& t) {
 
 void LogTicks(double lo, double hi, bool snap, int target, TickSet& t) {
   const double d0 = std::floor(std::log10(lo) + kEps), d1 = std::ceil(std::log10(hi) - kEps);
+  const double decades = d1 - d0;
+  const double rlo = lo * (1 - kEps), rhi = hi * (1 + kEps);
+  if (decades <= 2) {
+    // Narrow range: majors (and snapping) at 1, 2 and 5 times a power of ten,
+    // so the axis neither wastes a whole decade nor has fewer than two labels.
+    std::vector<std::pair<double, double>> nice;  // value, its decade (for the label)
+    for (double d = d0 - 1; d <= d1; d += 1)
+      for (double m : {1.0, 2.0, 5.0}) nice.emplace_back(m * std::pow(10.0, d), std::pow(10.0, d));
+    nice.emplace_back(std::pow(10.0, d1 + 1), std::pow(10.0, d1 + 1));
+    if (snap) {
+      const double dlo = lo, dhi = hi;
+      for (const auto& [v, dec] : nice)
+        if (v <= dlo * (1 + kEps)) lo = v;
+      for (auto it = nice.rbegin(); it != nice.rend(); ++it)
+        if (it->first >= dhi * (1 - kEps)) hi = it->first;
+    }
+    const double slo = lo * (1 - kEps), shi = hi * (1 + kEps);
+    for (const auto& [v, dec] : nice) {
+      if (v < slo || v > shi) continue;
+      t.major.push_back(v);
+      t.labels.push_back(FormatTick(v, dec));
+    }
+    for (double d = d0 - 1; d <= d1; d += 1)
+      for (int m = 2; m <= 9; ++m) {
+        const double v = m * std::pow(10.0, d);
+        if (v >= slo && v <= shi) t.minor.push_back(v);
+      }
+    t.lo = lo;
+    t.hi = hi;
+    return;
+  }
   if (snap) {
     lo = std::pow(10.0, d0);
     hi = std::pow(10.0, d1);
   }
   t.lo = lo;
   t.hi = hi;
-  const double decades = d1 - d0;
   const double every = std::max(1.0, std::ceil(decades / std::max(target, 2)));
-  const double rlo = lo * (1 - kEps), rhi = hi * (1 + kEps);
   for (double d = d0; d <= d1; d += 1) {
     const double base = std::pow(10.0, d);
     if (std::fmod(d - d0, every) == 0 && base >= rlo && base <= rhi) {
@@ -61,20 +92,6 @@ void LogTicks(double lo, double hi, bool snap, int target, TickSet& t) {
       for (int m = 2; m <= 9; ++m) {
         const double v = m * base;
         if (v >= rlo && v <= rhi) t.minor.push_back(v);
-      }
-    }
-  }
-  // Less than a decade shown: label 1-2-5 multiples too so the axis can be read.
-  if (t.major.size() < 2) {
-    t.major.clear();
-    t.labels.clear();
-    for (double d = d0; d <= d1; d += 1) {
-      for (double m : {1.0, 2.0, 5.0}) {
-        const double v = m * std::pow(10.0, d);
-        if (v >= rlo && v <= rhi) {
-          t.major.push_back(v);
-          t.labels.push_back(FormatTick(v, std::pow(10.0, d)));
-        }
       }
     }
   }

@@ -35,6 +35,10 @@ enum class Scale { kLinear, kLog };
 /// the nearest major ticks. reversed: larger values go down (y; e.g. depth)
 /// or left (x).
 struct Axis {
+  Axis() = default;
+  Axis(std::string label_text, std::string unit_text, Scale axis_scale = Scale::kLinear)
+      : label(std::move(label_text)), unit(std::move(unit_text)), scale(axis_scale) {}
+
   std::string label;  ///< quantity, e.g. "Confining pressure"
   std::string unit;   ///< e.g. "MPa"; empty for dimensionless
   Scale scale = Scale::kLinear;

@@ -20,7 +20,8 @@ struct TickSet {
 /// Nice ticks for the data range [lo, hi] (either order).
 /// Linear: steps of 1, 2 or 5 times a power of ten, about `target` majors.
 /// Log: majors at decades (every k-th decade for wide ranges), minors at
-/// 2..9 x 10^k; lo and hi must be > 0. snap: widen [lo, hi] to the enclosing
+/// 2..9 x 10^k; ranges of at most two decades use 1, 2 and 5 x 10^k as
+/// majors (and snap points) instead; lo and hi must be > 0. snap: widen [lo, hi] to the enclosing
 /// major ticks (used when the axis range comes from the data). A degenerate
 /// range (lo == hi) is widened to lo +/- max(|lo| / 10, 1) (log: lo / 10 ..
 /// lo * 10). Non-finite input, or lo/hi <= 0 on a log axis, throws
