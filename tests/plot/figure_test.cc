@@ -240,6 +240,18 @@ TEST(Figure, LongNamesMoveTheLegendBelowThePlot) {
   EXPECT_GT(std::stod(m[1].str()), bottom + 30);  // below the x axis title
 }
 
+TEST(Figure, ManyEntriesMoveTheLegendBelowThePlot) {
+  Figure f("tall", "many series", 640, 300);
+  for (int k = 0; k < 20; ++k) f.AddLine(Series{"s" + std::to_string(k), {0, 1}, {0, 1.0 * k}, {}, {}, {}});
+  const std::string svg = f.ToSvg();
+  const std::string legend = svg.substr(svg.find("<g class=\"pf-legend\">"));
+  std::smatch m;
+  const std::regex text("<text x=\"[0-9.]+\" y=\"([0-9.]+)\"");
+  ASSERT_TRUE(std::regex_search(legend, m, text));
+  EXPECT_GT(std::stod(m[1].str()), 200);  // first entry under the plot, not beside its top
+  EXPECT_EQ(XmlChecker::Check(svg), "");
+}
+
 TEST(Figure, EmptyFigureShowsNoDataMessage) {
   Figure f("empty", "Nothing yet");
   f.x() = Axis{"P", "MPa"};

@@ -261,7 +261,12 @@ std::string Figure::ToSvg() const {
   }
   const double entry_w = 30 + legend_text + 12;
   LegendPlace place = has_data && !legend.empty() ? legend_ : LegendPlace::kNone;
-  if (place == LegendPlace::kAuto) place = entry_w <= 0.35 * width_ ? LegendPlace::kRight : LegendPlace::kBelow;
+  if (place == LegendPlace::kAuto) {
+    // Right if the names are short and the entries fit the plot's height, else below.
+    const double plot_h = height_ - (title_.empty() ? 14.0 : 36.0) - 48 - static_cast<double>(notes.size()) * kRow;
+    const bool fits = static_cast<double>(legend.size()) * kRow + 8 <= plot_h;
+    place = entry_w <= 0.35 * width_ && fits ? LegendPlace::kRight : LegendPlace::kBelow;
+  }
   const int per_row = place == LegendPlace::kBelow ? std::max(1, static_cast<int>((width_ - 20) / entry_w)) : 1;
   const int legend_rows = place == LegendPlace::kBelow
                               ? static_cast<int>((legend.size() + static_cast<std::size_t>(per_row) - 1) / static_cast<std::size_t>(per_row))

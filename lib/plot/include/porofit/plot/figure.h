@@ -88,7 +88,8 @@ struct Series {
 };
 
 enum class LegendPlace {
-  kAuto,   ///< right of the plot area if it fits in 35% of the width, else below
+  kAuto,   ///< right of the plot area if it fits in 35% of the width and in the
+           ///< plot's height, else below
   kRight,  ///< outside the plot area, right
   kBelow,  ///< outside the plot area, below the x axis label
   kNone,
