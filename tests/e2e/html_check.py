@@ -127,8 +127,8 @@ class Checker(html.parser.HTMLParser):
     def handle_data(self, data):
         if self.in_title:
             self.title += data
-        if self.stack and self.stack[-1][0] == "style" and re.search(r"url\s*\(", data):
-            self.error_at("style sheet loads a url(...)")
+        if self.stack and self.stack[-1][0] == "style" and re.search(r"url\(\s*['\"]?[^#'\"\s)]", data):
+            self.error_at("style sheet loads a url(...) outside the page")
 
 
 def check_structure(args):

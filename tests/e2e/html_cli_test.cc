@@ -92,7 +92,7 @@ std::vector<std::string> ExpectedFigures(const std::string& study_path) {
   for (const StudySample& ss : study.samples) {
     std::string slug;
     for (char c : ss.sample.id)
-      slug += std::isalnum(static_cast<unsigned char>(c)) || c == '-' || c == '.' || c == '_' ? c : '_';
+      slug += std::isalnum(static_cast<unsigned char>(c)) || c == '-' || c == '_' ? c : '_';
     for (const char* f : {"k-fit", "residuals", "std-residuals"}) keys.push_back(slug + "_" + f);
     if (ss.grain.given) keys.push_back(slug + "_alpha");
   }

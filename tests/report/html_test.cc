@@ -131,7 +131,9 @@ TEST(HtmlReport, IsSelfContained) {
   EXPECT_EQ(h.find(" src="), std::string::npos);
   EXPECT_EQ(h.find("href=\"http"), std::string::npos);
   EXPECT_EQ(h.find("<link"), std::string::npos);
-  EXPECT_EQ(h.find("url("), std::string::npos);
+  // url(...) only for references within the page (SVG clip paths: "url(#...").
+  for (size_t at = h.find("url("); at != std::string::npos; at = h.find("url(", at + 4))
+    EXPECT_EQ(h[at + 4], '#') << h.substr(at, 40);
   EXPECT_EQ(h.find("<script"), std::string::npos);  // nothing to run: the content is plain markup
 }
 
@@ -180,13 +182,13 @@ TEST(HtmlReport, DrawsTheExpectedFiguresOfEverySample) {
     EXPECT_NE(f.svg.find("<svg"), std::string::npos);
     EXPECT_NE(f.svg.find("xmlns=\"http://www.w3.org/2000/svg\""), std::string::npos);
     // Inline once, with its key.
-    EXPECT_EQ(Count(r.html, "data-figure=\"" + f.key + "\""), 1u) << f.key;
+    EXPECT_EQ(Count(r.html, "<svg xmlns=\"http://www.w3.org/2000/svg\" class=\"porofit-figure\" data-figure=\"" + f.key + "\""), 1u) << f.key;
     EXPECT_NE(r.html.find("<figure id=\"fig-" + f.key + "\">"), std::string::npos) << f.key;
   }
   EXPECT_EQ(keys.size(), r.figures.size());
   for (const StudySample& ss : SampleStudy().samples) {
     std::string slug;
-    for (char c : ss.sample.id) slug += std::isalnum(static_cast<unsigned char>(c)) || c == '-' || c == '.' || c == '_' ? c : '_';
+    for (char c : ss.sample.id) slug += std::isalnum(static_cast<unsigned char>(c)) || c == '-' || c == '_' ? c : '_';
     for (const char* name : {"k-fit", "residuals", "std-residuals"})
       EXPECT_EQ(keys.count(slug + "_" + name), 1u) << slug << " " << name;
     EXPECT_EQ(keys.count(slug + "_alpha"), ss.grain.given ? 1u : 0u) << slug;
@@ -341,7 +343,7 @@ TEST(HtmlDepthSection, DrawsProfilesAgainstDepthAndMarksFlaggedRows) {
   const std::string h = RenderDepthTableSection(HandBuiltDepthTable(), false);
   EXPECT_EQ(CheckStructure(h), "");
   for (const char* f : {"stress", "alpha", "k"})
-    EXPECT_EQ(Count(h, std::string("data-figure=\"depth-QV-14_demo_") + f + "\""), 1u) << f;
+    EXPECT_EQ(Count(h, std::string("class=\"porofit-figure\" data-figure=\"depth-QV-14_demo_") + f + "\""), 1u) << f;
   EXPECT_EQ(Count(h, "<tr class=\"flagged\">"), 2u);
   EXPECT_NE(h.find("above-lab-range;alpha-outside-bounds"), std::string::npos);
   EXPECT_NE(h.find("datum: MSL"), std::string::npos);

@@ -98,11 +98,11 @@ HtmlReport::HtmlReport(const Study& study, const RunMetadata& metadata, const st
   for (const StudySample& ss : study.samples) {
     std::string s;
     for (char c : ss.sample.id) {
-      const bool ok = (c >= 'A' && c <= 'Z') || (c >= 'a' && c <= 'z') || (c >= '0' && c <= '9') || c == '.' ||
-                      c == '_' || c == '-';
+      const bool ok = (c >= 'A' && c <= 'Z') || (c >= 'a' && c <= 'z') || (c >= '0' && c <= '9') || c == '_' ||
+                      c == '-';
       s += ok ? c : '_';
     }
-    if (s.empty() || s[0] == '.') s = "s" + s;
+    if (s.empty()) s = "sample";
     std::string candidate = s;
     for (int k = 2; used.count(candidate) > 0; ++k) candidate = s + "-" + std::to_string(k);
     used[candidate] = 1;

@@ -1,5 +1,6 @@
 #include <sstream>
 
+#include "porofit/report/html.h"
 #include "porofit/report/report.h"
 #include "porofit/report/sha256.h"
 
@@ -19,7 +20,7 @@ std::vector<std::string> ReportFileNames() {
   return {"summary.txt", "parameters.csv", "fits.csv",          "residuals.csv",
           "alpha.csv",   "grain_modulus.csv", "alpha_vti.csv", "moduli.csv", "strain_residuals.csv",
           "comparison.csv", "nested_tests.csv", "comparison_groups.csv", "branch_tests.csv", "hysteresis.csv",
-          "joint_fits.csv", "joint_tests.csv", "joint_alpha.csv", "results.json"};
+          "joint_fits.csv", "joint_tests.csv", "joint_alpha.csv", "results.json", "report.html"};
 }
 
 void WriteReportFolder(const StudyRun& run, const std::filesystem::path& folder,
@@ -53,6 +54,9 @@ void WriteReportFolder(const StudyRun& run, const std::filesystem::path& folder,
         emit("joint_tests.csv", [&](std::ostream& o) { WriteJointTestsCsv(run, o); });
         emit("joint_alpha.csv", [&](std::ostream& o) { WriteJointAlphaCsv(run, o); });
         emit("results.json", [&](std::ostream& o) { WriteResultsJson(run, inputs, o, options); });
+        std::vector<HtmlFigure> figures;
+        emit("report.html", [&](std::ostream& o) { WriteHtmlReport(run, inputs, o, &figures, options); });
+        WriteHtmlFigureFiles(staging, figures);
       },
       folder_options);
 }

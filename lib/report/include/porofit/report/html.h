@@ -95,7 +95,7 @@ class HtmlReport {
   std::string Tail(const StudyRun& across, const std::string& overview_rows) const;
 
   /// The anchor slug of sample `index`: the id with characters outside
-  /// [A-Za-z0-9._-] replaced by '_', made unique with "-<n>" where needed.
+  /// [A-Za-z0-9_-] replaced by '_' (so it is a valid plot::Figure id), made unique with "-<n>" where needed.
   const std::string& Slug(size_t index) const { return slugs_[index]; }
 
  private:
