@@ -55,7 +55,7 @@ void WriteStudy(const fs::path& dir, int n) {
          "description: SYNTHETIC seeded data written by bench/report_bench.cc, not measurements\n"
          "defaults:\n  models: [exp-modulus, exp-compliance]\n"
          "grain_moduli:\n  syn:\n    measured: {K_s: 37 GPa, sigma: 1 GPa, source: invented for the benchmark}\n"
-         "sample_table:\n  file: samples.csv\n  data: points.csv\n";
+         "sample_table:\n  file: samples.csv\n  data: points.csv\n  uncertainty_calibrated: true\n";
 }
 
 const porofit::StudyRun& Run() {
