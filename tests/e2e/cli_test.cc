@@ -193,7 +193,7 @@ TEST(SampleStudy, FitWritesEveryFileAndTheSummaryShowsEverySample) {
   EXPECT_EQ(Slurp(out / "summary.txt") +
                 "\nwrote summary.txt, parameters.csv, fits.csv, residuals.csv, alpha.csv, grain_modulus.csv, "
                 "alpha_vti.csv, moduli.csv, strain_residuals.csv, comparison.csv, nested_tests.csv, comparison_groups.csv, "
-                "branch_tests.csv, hysteresis.csv, joint_fits.csv, joint_tests.csv, joint_alpha.csv, results.json to " +
+                "branch_tests.csv, hysteresis.csv, joint_fits.csv, joint_tests.csv, joint_alpha.csv, results.json, report.html to " +
                 out.string() + "\n",
             r.out);
   // Only the report files: no staging folder left next to it.
