@@ -86,7 +86,7 @@ const std::vector<std::string> kReportFiles = {"summary.txt", "parameters.csv", 
                                                "alpha_vti.csv", "moduli.csv", "strain_residuals.csv", "comparison.csv", "nested_tests.csv",
                                                "comparison_groups.csv", "branch_tests.csv", "hysteresis.csv", "joint_fits.csv", "joint_tests.csv", "joint_alpha.csv",
                                                "depth_QV-14.csv",  // the sample study's depth table
-                                               "results.json"};
+                                               "results.json", "report.html"};
 
 // ---------------------------------------------------------------- command line
 
@@ -196,7 +196,7 @@ TEST(SampleStudy, FitWritesEveryFileAndTheSummaryShowsEverySample) {
   EXPECT_EQ(Slurp(out / "summary.txt") +
                 "\nwrote summary.txt, parameters.csv, fits.csv, residuals.csv, alpha.csv, grain_modulus.csv, "
                 "alpha_vti.csv, moduli.csv, strain_residuals.csv, comparison.csv, nested_tests.csv, comparison_groups.csv, "
-                "branch_tests.csv, hysteresis.csv, joint_fits.csv, joint_tests.csv, joint_alpha.csv, depth_QV-14.csv, results.json to " +
+                "branch_tests.csv, hysteresis.csv, joint_fits.csv, joint_tests.csv, joint_alpha.csv, depth_QV-14.csv, results.json, report.html to " +
                 out.string() + "\n",
             r.out);
   // Only the report files: no staging folder left next to it.

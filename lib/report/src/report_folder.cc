@@ -1,5 +1,7 @@
+#include <algorithm>
 #include <sstream>
 
+#include "porofit/report/html.h"
 #include "porofit/report/report.h"
 #include "porofit/report/sha256.h"
 
@@ -19,14 +21,15 @@ std::vector<std::string> ReportFileNames() {
   return {"summary.txt", "parameters.csv", "fits.csv",          "residuals.csv",
           "alpha.csv",   "grain_modulus.csv", "alpha_vti.csv", "moduli.csv", "strain_residuals.csv",
           "comparison.csv", "nested_tests.csv", "comparison_groups.csv", "branch_tests.csv", "hysteresis.csv",
-          "joint_fits.csv", "joint_tests.csv", "joint_alpha.csv", "results.json"};
+          "joint_fits.csv", "joint_tests.csv", "joint_alpha.csv", "results.json", "report.html"};
 }
 
 std::vector<std::string> ReportFileNames(const Study& study) {
   std::vector<std::string> names = ReportFileNames();
   std::vector<std::string> depth;
   for (const DepthTableChoice& t : study.depth_tables) depth.push_back(DepthTableFileName(t));
-  names.insert(names.end() - 1, depth.begin(), depth.end());  // before results.json, in writing order
+  // Before results.json, in writing order.
+  names.insert(std::find(names.begin(), names.end(), "results.json"), depth.begin(), depth.end());
   return names;
 }
 
@@ -63,6 +66,9 @@ void WriteReportFolder(const StudyRun& run, const std::filesystem::path& folder,
         for (size_t t = 0; t < run.study.depth_tables.size(); ++t)
           emit(DepthTableFileName(run.study.depth_tables[t]), [&](std::ostream& o) { WriteDepthTableCsv(run, t, o); });
         emit("results.json", [&](std::ostream& o) { WriteResultsJson(run, inputs, o, options); });
+        std::vector<HtmlFigure> figures;
+        emit("report.html", [&](std::ostream& o) { WriteHtmlReport(run, inputs, o, &figures, options); });
+        WriteHtmlFigureFiles(staging, figures);
       },
       folder_options);
 }

@@ -8,6 +8,7 @@
 #include <sstream>
 
 #include "format.h"
+#include "porofit/report/html.h"
 #include "porofit/report/stream.h"
 
 namespace porofit {
@@ -56,7 +57,7 @@ class StreamWriter {
         alpha_(staging / "alpha.csv"), grain_(staging / "grain_modulus.csv"), vti_(staging / "alpha_vti.csv"),
         moduli_(staging / "moduli.csv"), strain_residuals_(staging / "strain_residuals.csv"),
         comparison_(staging / "comparison.csv"), nested_(staging / "nested_tests.csv"),
-        json_(staging / "results.json") {
+        json_(staging / "results.json"), html_(study, meta, inputs_, *registry_), html_file_(staging / "report.html") {
     options_.report.registry = registry_.get();
     WriteParametersCsvHeader(study, meta, parameters_.out());
     WriteFitsCsvHeader(study, meta, fits_.out());
@@ -75,6 +76,10 @@ class StreamWriter {
     // go where the placeholder is, in the layout nlohmann's dump(2) gives
     // them; the across-sample sections after them are written by Finish().
     json_.out() << JsonAround(StudyRun{}).first;
+    // report.html: head now, each sample's section as it is written, the
+    // across-sample tables at the end; figure files as their sample is written.
+    html_file_.out() << html_.Head();
+    WriteHtmlFigureFiles(staging, {});
   }
 
   // Formats sample i's rows of every file. Thread-safe (reads only the
@@ -110,6 +115,9 @@ class StreamWriter {
     comparison_.out() << r.comparison;
     nested_.out() << r.nested;
     json_.out() << (i == 0 ? "[\n" : ",\n") << r.json;
+    html_file_.out() << r.html.html;
+    WriteHtmlFigureFiles(staging_, r.html.figures);
+    html_overview_ += r.html.overview_row;
     ++written_;
     const StudySample& ss = study_.samples[i];
 
@@ -157,8 +165,11 @@ class StreamWriter {
       whole(DepthTableFileName(study_.depth_tables[t]), [&](std::ostream& o) { WriteDepthTableCsv(across, t, o); });
 
     json_.out() << (written_ == 0 ? "[]" : "\n  ]") << JsonAround(across).second;
+    std::vector<HtmlFigure> depth_figures;
+    html_file_.out() << html_.Tail(across, html_overview_, &depth_figures);
+    WriteHtmlFigureFiles(staging_, depth_figures);
     for (Appender* a : {&parameters_, &fits_, &residuals_, &alpha_, &grain_, &vti_, &moduli_, &strain_residuals_,
-                        &comparison_, &nested_, &json_})
+                        &comparison_, &nested_, &json_, &html_file_})
       a->Close();
     std::ostringstream s;
     WriteSummaryHead(study_, meta_, counts_, s);
@@ -173,6 +184,7 @@ class StreamWriter {
  private:
   struct Rendered {
     std::string parameters, fits, residuals, alpha, grain, vti, moduli, strain_residuals, comparison, nested, json;
+    HtmlSection html;
   };
 
   // results.json's text before and after the "samples" array, for the
@@ -208,6 +220,7 @@ class StreamWriter {
     r.strain_residuals = text([&](std::ostream& o) { WriteStrainResidualsCsvRows(ss, sr, o); });
     r.comparison = text([&](std::ostream& o) { WriteComparisonCsvRows(study_, ss, sr, o); });
     r.nested = text([&](std::ostream& o) { WriteNestedTestsCsvRows(ss, sr, o); });
+    r.html = html_.Section(i, sr);
     const std::string block = Dump(SampleResultsJson(ss, &sr, shared, options_.report));
     r.json.reserve(block.size() + block.size() / 8 + 4);
     r.json = "    ";
@@ -277,6 +290,9 @@ class StreamWriter {
   std::map<size_t, std::vector<FitResult>> kept_fits_;  // fits of plug samples, for the branch tests
   Appender parameters_, fits_, residuals_, alpha_, grain_, vti_, moduli_, strain_residuals_, comparison_, nested_,
       json_;
+  HtmlReport html_;
+  Appender html_file_;
+  std::string html_overview_;  // one overview row per sample (about 0.3 kB each)
   std::mutex mu_;
   std::map<size_t, Rendered> rendered_;  // formatted by workers, waiting for their turn
   size_t written_ = 0;
