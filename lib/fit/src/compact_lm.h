@@ -187,6 +187,7 @@ CompactSummary SolveCompact(const Eval& eval, int n, int p, double* u, const dou
                     step_norm / (x.norm() + opt.parameter_tolerance), opt.parameter_tolerance);
       out.message = buf;
       out.end = RunEnd::kConverged;
+      --iteration;  // as Ceres: the step that meets a tolerance is not counted
       break;
     }
     const double cost_change = cost - cand_cost;
@@ -195,6 +196,7 @@ CompactSummary SolveCompact(const Eval& eval, int n, int p, double* u, const dou
                     std::abs(cost_change) / cost, opt.function_tolerance);
       out.message = buf;
       out.end = RunEnd::kConverged;
+      --iteration;
       break;
     }
     double model_change = 0;
