@@ -10,9 +10,9 @@
 //
 // Benchmarks:
 //   BM_LoadBatchStudy/N      LoadStudy of an N-sample sample_table study (files in a temp dir)
-//   BM_RunBatch/N/threads/multistart  RunStudyStreaming over N samples, a sink that keeps nothing
+//   BM_RunBatch/N/threads/multistart/solver  RunStudyStreaming over N samples, a sink that keeps nothing
 //   BM_RunAndWrite/N/threads/multistart the CLI's path: run + every output file into a folder
-// The baseline in the same run is the 1-thread figure (and fit_bench's single fits).
+// The baseline in the same run is the Ceres solver path (auto_solver:0), 1 thread.
 #include <benchmark/benchmark.h>
 #include <unistd.h>
 
@@ -25,6 +25,7 @@
 #include <map>
 #include <random>
 #include <string>
+#include <tuple>
 
 #include "porofit/io/study_loader.h"
 #include "porofit/report/stream.h"
@@ -73,13 +74,17 @@ fs::path BenchDir(int n) {
 
 // The loaded study with FitOptions::multistart set on every sample (the
 // study file itself uses the defaults, multistart 8).
-const porofit::Study& BenchStudy(int n, int multistart) {
-  static std::map<std::pair<int, int>, porofit::Study> loaded;
-  auto it = loaded.find({n, multistart});
+// solver: 1 = FitOptions::solver auto (the default), 0 = ceres (the baseline).
+const porofit::Study& BenchStudy(int n, int multistart, int solver = 1) {
+  static std::map<std::tuple<int, int, int>, porofit::Study> loaded;
+  auto it = loaded.find({n, multistart, solver});
   if (it == loaded.end()) {
     porofit::Study s = porofit::LoadStudy((BenchDir(n) / "study.yaml").string());
-    for (porofit::StudySample& ss : s.samples) ss.options.multistart = multistart;
-    it = loaded.emplace(std::make_pair(n, multistart), std::move(s)).first;
+    for (porofit::StudySample& ss : s.samples) {
+      ss.options.multistart = multistart;
+      ss.options.solver = solver == 0 ? porofit::SolverChoice::kCeres : porofit::SolverChoice::kAuto;
+    }
+    it = loaded.emplace(std::make_tuple(n, multistart, solver), std::move(s)).first;
   }
   return it->second;
 }
@@ -97,35 +102,41 @@ BENCHMARK(BM_LoadBatchStudy)->Arg(10000)->Unit(benchmark::kMillisecond)->Iterati
 
 void BM_RunBatch(benchmark::State& state) {
   const int n = static_cast<int>(state.range(0));
-  const porofit::Study& study = BenchStudy(n, static_cast<int>(state.range(2)));
+  const porofit::Study& study = BenchStudy(n, static_cast<int>(state.range(2)), static_cast<int>(state.range(3)));
   porofit::RunOptions o;
   o.threads = static_cast<int>(state.range(1));
-  size_t fits = 0, converged = 0;
+  size_t fits = 0, converged = 0, at_limit = 0;
   for (auto _ : state) {
     fits = converged = 0;
     porofit::RunStudyStreaming(study, o, [&](size_t, porofit::SampleRun&& r) {
       for (const porofit::FitResult& f : r.fits) {
         ++fits;
         converged += f.status == porofit::FitStatus::kConverged ? 1 : 0;
+        at_limit += f.status == porofit::FitStatus::kAtLimit ? 1 : 0;
       }
     });
   }
   state.counters["fits"] = static_cast<double>(fits);
   state.counters["converged"] = static_cast<double>(converged);
+  state.counters["at_limit"] = static_cast<double>(at_limit);
   state.counters["us_per_fit"] = benchmark::Counter(static_cast<double>(fits) * 1e-6,
                                                     benchmark::Counter::kIsIterationInvariantRate |
                                                         benchmark::Counter::kInvert);
 }
-// Args: samples, threads, multistart. The 10,000-sample runs use multistart 1
-// to keep the session short; multistart 8 (the default) is timed on 1,000 and
-// by the CLI run recorded in docs/benchmarks.md.
+// Args: samples, threads, multistart, solver (1 auto = default, 0 ceres =
+// baseline). The Ceres baseline at multistart 8 is timed on 1,000 samples
+// only, to keep the session short.
 BENCHMARK(BM_RunBatch)
-    ->Args({1000, 1, 8})
-    ->Args({1000, 2, 8})
-    ->Args({1000, 1, 1})
-    ->Args({1000, 2, 1})
-    ->Args({10000, 1, 1})
-    ->Args({10000, 2, 1})
+    ->ArgNames({"samples", "threads", "multistart", "auto_solver"})
+    ->Args({1000, 1, 8, 0})
+    ->Args({1000, 1, 8, 1})
+    ->Args({1000, 1, 1, 0})
+    ->Args({1000, 1, 1, 1})
+    ->Args({10000, 1, 8, 1})
+    ->Args({10000, 2, 8, 1})
+    ->Args({10000, 1, 1, 1})
+    ->Args({10000, 2, 1, 1})
+    ->Args({10000, 1, 1, 0})
     ->Unit(benchmark::kSecond)
     ->Iterations(1)
     ->UseRealTime();

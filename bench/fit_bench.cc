@@ -5,7 +5,8 @@
 //                       (one block, analytic Jacobian, no covariance, no checks)
 //   BM_FixedParameter   K_0 held fixed: SubsetManifold (arg 1) vs removed (arg 0)
 //   BM_Fit/<model>/...  porofit::Fit with covariance and residual diagnostics
-//                       (".../unbounded-first": FitOptions::unbounded_first)
+//                       (".../ceres-solver": FitOptions::solver = ceres, the baseline;
+//                        ".../auto-solver": the default, compact LM where it applies)
 //   BM_Covariance*      the covariance step alone (ceres::Covariance vs Eigen SVD)
 //   BM_FitBatch         fits per second over 1,000 different samples
 // The data are invented: P = 2..60 MPa (15 points), Gaussian noise, fixed seed.
@@ -65,7 +66,7 @@ FitRequest MakeRequest(const ModelSpec& m, const Case& c, std::mt19937_64& rng) 
 const ModelSpec& Model(const char* id) { return *ModelRegistry::Builtin().Find(id); }
 
 void BM_Fit(benchmark::State& state, const Case& c, int multistart, CovarianceBackend backend, bool covariance,
-            bool unbounded_first) {
+            bool unbounded_first, SolverChoice solver) {
   const ModelSpec& m = Model(c.id);
   std::mt19937_64 rng(20261201);
   FitRequest req = MakeRequest(m, c, rng);
@@ -73,6 +74,7 @@ void BM_Fit(benchmark::State& state, const Case& c, int multistart, CovarianceBa
   req.options.covariance_backend = backend;
   req.options.covariance = covariance;
   req.options.unbounded_first = unbounded_first;
+  req.options.solver = solver;
   int converged = 0;
   for (auto _ : state) {
     FitResult r = Fit(req);
@@ -257,12 +259,14 @@ void BM_CovarianceEigen(benchmark::State& state) {
 // Fits per second over 1,000 different exp-modulus samples (covariance on;
 // multistart 1 and the default 8).
 void BM_FitBatch(benchmark::State& state) {
+  const SolverChoice solver = state.range(1) == 0 ? SolverChoice::kCeres : SolverChoice::kAuto;
   const ModelSpec& m = Model("exp-modulus");
   std::mt19937_64 rng(7);
   std::vector<FitRequest> batch;
   for (int k = 0; k < 1000; ++k) {
     batch.push_back(MakeRequest(m, Cases()[1], rng));
     batch.back().options.multistart = static_cast<int>(state.range(0));
+    batch.back().options.solver = solver;
   }
   int64_t fits = 0, failed = 0;
   for (auto _ : state) {
@@ -284,18 +288,24 @@ int Register() {
   benchmark::RegisterBenchmark("BM_CovarianceEigen/exp-modulus", BM_CovarianceEigen);
   for (const Case& c : Cases()) {
     const std::string id = c.id;
-    benchmark::RegisterBenchmark(("BM_Fit/" + id + "/multistart1/ceres-cov").c_str(), BM_Fit, c, 1,
-                                 CovarianceBackend::kCeres, true, false);
-    benchmark::RegisterBenchmark(("BM_Fit/" + id + "/multistart1/eigen-cov").c_str(), BM_Fit, c, 1,
-                                 CovarianceBackend::kEigen, true, false);
-    benchmark::RegisterBenchmark(("BM_Fit/" + id + "/multistart1/no-cov").c_str(), BM_Fit, c, 1,
-                                 CovarianceBackend::kEigen, false, false);
-    benchmark::RegisterBenchmark(("BM_Fit/" + id + "/multistart8/eigen-cov").c_str(), BM_Fit, c, 8,
-                                 CovarianceBackend::kEigen, true, false);
-    benchmark::RegisterBenchmark(("BM_Fit/" + id + "/multistart1/eigen-cov/unbounded-first").c_str(), BM_Fit, c, 1,
-                                 CovarianceBackend::kEigen, true, true);
+    // Baseline in the same run: the Ceres solver path (FitOptions::solver = ceres).
+    for (SolverChoice solver : {SolverChoice::kCeres, SolverChoice::kAuto}) {
+      const std::string tag = solver == SolverChoice::kCeres ? "/ceres-solver" : "/auto-solver";
+      benchmark::RegisterBenchmark(("BM_Fit/" + id + "/multistart1/ceres-cov" + tag).c_str(), BM_Fit, c, 1,
+                                   CovarianceBackend::kCeres, true, false, solver);
+      benchmark::RegisterBenchmark(("BM_Fit/" + id + "/multistart1/eigen-cov" + tag).c_str(), BM_Fit, c, 1,
+                                   CovarianceBackend::kEigen, true, false, solver);
+      benchmark::RegisterBenchmark(("BM_Fit/" + id + "/multistart8/eigen-cov" + tag).c_str(), BM_Fit, c, 8,
+                                   CovarianceBackend::kEigen, true, false, solver);
+    }
   }
-  benchmark::RegisterBenchmark("BM_FitBatch/exp-modulus/1000", BM_FitBatch)->Arg(1)->Arg(8)->Unit(benchmark::kMillisecond);
+  benchmark::RegisterBenchmark("BM_FitBatch/exp-modulus/1000", BM_FitBatch)
+      ->ArgNames({"multistart", "auto_solver"})
+      ->Args({1, 0})
+      ->Args({1, 1})
+      ->Args({8, 0})
+      ->Args({8, 1})
+      ->Unit(benchmark::kMillisecond);
   return 0;
 }
 const int registered = Register();

@@ -24,6 +24,15 @@ std::string_view ToString(CovarianceBackend b) {
   return "unknown";
 }
 
+std::string_view ToString(SolverChoice c) {
+  switch (c) {
+    case SolverChoice::kAuto: return "auto";
+    case SolverChoice::kCeres: return "ceres";
+    case SolverChoice::kCompact: return "compact";
+  }
+  return "unknown";
+}
+
 namespace {
 
 // One line per rule: "fit.<field> = <value> violates <rule>".

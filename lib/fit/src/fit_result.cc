@@ -14,6 +14,7 @@ std::string_view ToString(FitStatus s) {
     case FitStatus::kNumericalFailure: return "numerical-failure";
     case FitStatus::kTooFewPoints: return "too-few-points";
     case FitStatus::kInvalidRequest: return "invalid-request";
+    case FitStatus::kAtLimit: return "at-limit";
   }
   return "unknown";
 }

@@ -14,12 +14,13 @@
 
 #include "porofit/core/error.h"
 #include "porofit/fit/diagnostics.h"
+#include "compact_lm.h"
+#include "solve_common.h"
 
 namespace porofit {
 namespace {
 
-constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
-constexpr double kInf = std::numeric_limits<double>::infinity();
+using namespace fit_detail;
 
 // Everything the solver needs, in the model's working units. Built once per
 // Fit() call from the request; never shared between calls.
@@ -267,35 +268,6 @@ std::string Prepare(const FitRequest& req, Setup& s, FitStatus& status) {
   return {};
 }
 
-// Moves theta strictly inside [lower, upper] (towards `base` where possible):
-// heuristic and perturbed starts must be feasible for the solver.
-double IntoBounds(double t, double base, double lo, double hi, bool log) {
-  if (log && !(t > 0)) t = base > 0 ? base : (hi < kInf ? 0.5 * hi : 1.0);
-  if (t >= lo && t <= hi && (!log || t > 0)) return t;
-  const double b = std::clamp(base, lo, hi);
-  if (t < lo) return (b > lo) ? lo + 0.5 * (b - lo) : lo;
-  return (b < hi) ? hi - 0.5 * (hi - b) : hi;
-}
-
-struct Run {
-  std::vector<double> start;  // theta, working
-  std::vector<double> u;      // solution, solver coordinates
-  double cost = kInf;
-  ceres::TerminationType termination = ceres::FAILURE;
-  int iterations = 0;
-  std::string message;
-};
-
-FitStatus StatusOf(ceres::TerminationType t) {
-  switch (t) {
-    case ceres::CONVERGENCE: return FitStatus::kConverged;
-    case ceres::NO_CONVERGENCE: return FitStatus::kMaxIterations;
-    default: return FitStatus::kNumericalFailure;
-  }
-}
-
-bool Usable(ceres::TerminationType t) { return t == ceres::CONVERGENCE || t == ceres::NO_CONVERGENCE; }
-
 std::unique_ptr<ceres::LossFunction> MakeLoss(const FitOptions& opt) {
   // Ceres' rho(s) acts on s = r^2; HuberLoss(a) and CauchyLoss(a) bend at
   // |r| = a, so a = loss_scale is in sigma units as FitOptions documents.
@@ -312,49 +284,6 @@ ceres::Problem::Options BorrowingProblemOptions() {
   po.cost_function_ownership = ceres::DO_NOT_TAKE_OWNERSHIP;
   po.loss_function_ownership = ceres::DO_NOT_TAKE_OWNERSHIP;
   return po;
-}
-
-// Covariance of the solver coordinates u, unscaled (no s^2), from the
-// weighted Jacobian J (n x nf) at the solution.
-struct CovarianceOut {
-  Eigen::MatrixXd cov_u;
-  int rank = 0;
-  bool ok = false;
-  std::string method;
-};
-
-// Column equilibration: the rank / condition test must not depend on the
-// units of the parameters (NIST Misra1b: columns differ by 1e6, and J^T J of
-// the raw columns looks singular at a reciprocal condition of 1e-14).
-Eigen::VectorXd ColumnScales(const Eigen::MatrixXd& J) {
-  Eigen::VectorXd c(J.cols());
-  for (Eigen::Index k = 0; k < J.cols(); ++k) {
-    const double norm = J.col(k).norm();
-    c(k) = norm > 0 && std::isfinite(norm) ? 1.0 / norm : 1.0;
-  }
-  return c;
-}
-
-// (J^T J)^+ from the SVD of the equilibrated Jacobian J C: Cov = C V S^-2 V^T C,
-// dropping singular values with (s_k / s_max)^2 below min_rcond (rank deficient).
-CovarianceOut EigenCovariance(const Eigen::MatrixXd& J, double min_rcond) {
-  CovarianceOut out;
-  const Eigen::VectorXd c = ColumnScales(J);
-  const Eigen::MatrixXd Js = J * c.asDiagonal();
-  Eigen::JacobiSVD<Eigen::MatrixXd> svd(Js, Eigen::ComputeThinV);
-  const Eigen::VectorXd& sv = svd.singularValues();
-  Eigen::VectorXd inv2 = Eigen::VectorXd::Zero(J.cols());
-  for (Eigen::Index k = 0; k < sv.size(); ++k) {
-    const double ratio = sv(0) > 0 ? sv(k) / sv(0) : 0.0;
-    if (ratio * ratio >= min_rcond) {
-      inv2(k) = 1.0 / (sv(k) * sv(k));
-      ++out.rank;
-    }
-  }
-  out.cov_u = c.asDiagonal() * (svd.matrixV() * inv2.asDiagonal() * svd.matrixV().transpose()) * c.asDiagonal();
-  out.ok = out.rank == J.cols() && out.cov_u.allFinite();
-  out.method = "eigen-svd";
-  return out;
 }
 
 // Presents a cost function to Ceres in column-scaled coordinates v = u / c.
@@ -415,6 +344,47 @@ CovarianceOut CeresCovariance(const Setup& s, const Eigen::MatrixXd& Jc, const d
   out.rank = s.nf;
   out.ok = true;
   return out;
+}
+
+// Feeds the Ceres run's accepted iterates to the drift watch (needs
+// update_state_every_iteration, so that u holds the current iterate).
+class DriftCallback final : public ceres::IterationCallback {
+ public:
+  DriftCallback(DriftWatch& watch, const double* u) : watch_(watch), u_(u) {}
+  ceres::CallbackReturnType operator()(const ceres::IterationSummary& it) override {
+    if (it.iteration == 0 || !it.step_is_successful) return ceres::SOLVER_CONTINUE;
+    return watch_.Observe(it.cost, u_) ? ceres::SOLVER_TERMINATE_SUCCESSFULLY : ceres::SOLVER_CONTINUE;
+  }
+
+ private:
+  DriftWatch& watch_;
+  const double* u_;
+};
+
+class WatchObserver final : public CompactObserver {
+ public:
+  explicit WatchObserver(DriftWatch& watch) : watch_(watch) {}
+  bool Stop(int, double cost, const double* u) override { return watch_.Observe(cost, u); }
+  std::string Message() const override { return {}; }
+
+ private:
+  DriftWatch& watch_;
+};
+
+// "P_r ran from 0.0123 to 0.00045 MPa ..." for a run the drift watch stopped.
+std::string DriftMessage(const Setup& s, const DriftWatch& w, int iterations) {
+  const int k = w.coordinate();
+  const int j = s.free_index[static_cast<size_t>(k)];
+  const ParameterSpec& ps = s.model->parameters[static_cast<size_t>(j)];
+  const bool lg = s.log[static_cast<size_t>(j)];
+  const double a = lg ? std::exp(w.from()) : w.from(), b = lg ? std::exp(w.to()) : w.to();
+  const std::string limit = w.downwards() ? (lg && !(s.lower[static_cast<size_t>(j)] > 0) ? "0" : "its lower bound")
+                                          : "its upper bound";
+  return "stopped after " + std::to_string(iterations) + " iterations: " + ps.name + " ran monotonically from " +
+         FormatNumber(a) + " to " + FormatNumber(b) + " " + ps.unit + " over the last " +
+         std::to_string(DriftWatch::kWindow) + " steps, toward " + limit + ", while the cost improved by only " +
+         FormatNumber(w.relative_change()) + " (relative): the best fit lies at that limit of the model, where " +
+         ps.name + " and the parameters traded off against it are not determined";
 }
 
 }  // namespace
@@ -505,9 +475,7 @@ FitResult Fit(const FitRequest& req) {
         std::vector<double> centre(s.np);
         for (int j = 0; j < s.np; ++j) {
           const double lo = s.lower[j], hi = s.upper[j];
-          centre[j] = std::isfinite(lo) && std::isfinite(hi) ? 0.5 * (lo + hi)
-                      : std::isfinite(lo) ? (s.log[j] ? std::max(2 * lo, 1.0) : lo + 1)
-                      : std::isfinite(hi) ? hi - 1 : 0.0;
+          centre[j] = BoxCentre(lo, hi, s.log[j]);
           if (s.user_start[j]) centre[j] = *s.user_start[j];
         }
         base = complete(heuristic, centre, true);
@@ -525,13 +493,7 @@ FitResult Fit(const FitRequest& req) {
       std::vector<double> t = base;
       for (int j = 0; j < s.np; ++j) {
         if (s.fixed[j] || s.user_start[j]) continue;
-        const double z = normal(rng);
-        if (s.log[j] || (s.lower[j] >= 0 && base[j] > 0)) {
-          t[j] = base[j] * std::exp(opt.start_spread * z);
-        } else {
-          t[j] = base[j] + opt.start_spread * std::max(std::abs(base[j]), 1.0) * z;
-        }
-        t[j] = IntoBounds(t[j], base[j], s.lower[j], s.upper[j], s.log[j]);
+        t[j] = PerturbStart(base[j], normal(rng), opt.start_spread, s.lower[j], s.upper[j], s.log[j]);
       }
       starts.push_back(std::move(t));
     }
@@ -619,29 +581,31 @@ FitResult Fit(const FitRequest& req) {
     return {};
   };
 
-  ceres::Solver::Options so;
-  so.minimizer_type = ceres::TRUST_REGION;
-  so.trust_region_strategy_type = ceres::LEVENBERG_MARQUARDT;
-  so.linear_solver_type = ceres::DENSE_QR;
-  so.logging_type = ceres::SILENT;
-  so.minimizer_progress_to_stdout = false;
-  so.max_num_iterations = opt.max_iterations;
-  so.function_tolerance = opt.function_tolerance;
-  so.gradient_tolerance = opt.gradient_tolerance;
-  so.parameter_tolerance = opt.parameter_tolerance;
-  so.num_threads = 1;
+  ceres::Solver::Options so = CeresOptions(opt);
+  std::vector<bool> log_coordinate(static_cast<size_t>(s.nf));
+  for (int k = 0; k < s.nf; ++k) log_coordinate[static_cast<size_t>(k)] = s.log[s.free_index[k]];
+  DriftWatch watch(s.nf, log_coordinate);
+  DriftCallback drift_callback(watch, u.data());
+  so.callbacks.push_back(&drift_callback);
+  so.update_state_every_iteration = true;
+  // The compact solver (FitOptions::solver) for small plain least squares.
+  const bool compact_fits = !loss && s.nf >= 1 && s.nf <= kCompactMaxParameters && s.n <= kCompactMaxPoints;
+  const bool use_compact = compact_fits && opt.solver != SolverChoice::kCeres;
+  CompactWork work;
+  WatchObserver observer(watch);
+  auto eval = [&](const double* uu, double* rr, double* jj) { return cost.EvaluateAt(uu, rr, jj); };
 
-  Run best;
+  SolverRun best;
   std::vector<double> start_res, start_jac;
   for (const std::vector<double>& st : starts) {
-    Run run;
+    SolverRun run;
     run.start = st;
     r.starts_tried += 1;
     if (s.nf == 0) {
       std::vector<double> res(s.n);
       const bool ok = cost.EvaluateAt(u.data(), res.data(), nullptr);
       run.cost = ok ? 0.5 * std::inner_product(res.begin(), res.end(), res.begin(), 0.0) : kInf;
-      run.termination = ok ? ceres::CONVERGENCE : ceres::FAILURE;
+      run.end = ok ? RunEnd::kConverged : RunEnd::kFailure;
       run.message = ok ? "all parameters fixed: nothing to solve" : "model is not finite at the fixed parameters";
     } else {
       ToSolver(s, st.data(), u.data());
@@ -650,46 +614,65 @@ FitResult Fit(const FitRequest& req) {
       start_res.resize(static_cast<size_t>(s.n));
       start_jac.resize(static_cast<size_t>(s.n) * static_cast<size_t>(s.nf));
       if (!cost.EvaluateAt(u.data(), start_res.data(), start_jac.data())) {
-        run.termination = ceres::FAILURE;
+        run.end = RunEnd::kFailure;
         run.message = cost.error().empty() ? "model or its derivative is not finite at the start" : cost.error();
-        if (best.message.empty() && !Usable(best.termination)) best = run;
+        if (best.message.empty() && !Usable(best.end)) best = run;
         continue;
       }
-      ceres::Solver::Summary sum;
-      ceres::Solve(so, open_first || !has_box ? &open_problem : &bounded_problem(), &sum);
-      if (open_first && !(sum.termination_type == ceres::CONVERGENCE && inside_box() && identified())) {
-        ToSolver(s, st.data(), u.data());
-        ceres::Solve(so, &bounded_problem(), &sum);
+      watch.Reset();
+      bool solved = false;
+      std::string note;  // why the compact solver handed over to Ceres
+      if (use_compact) {
+        const CompactSummary cs =
+            SolveCompact(eval, s.n, s.nf, u.data(), box_lo.data(), box_hi.data(), opt, work, &observer);
+        // A converged answer must also identify every coordinate (the rank
+        // test of the covariance): NIST StRD BoxBOD Start 1 otherwise ends on
+        // the b2 -> infinity plateau, which Ceres' bounded line search avoids.
+        const bool accept = cs.end == RunEnd::kStalled || (cs.end == RunEnd::kConverged && identified());
+        if (accept) {
+          run.iterations = cs.iterations;
+          run.end = cs.end;
+          run.cost = cs.cost;
+          run.message = cs.message;
+          solved = true;
+        } else {
+          note = cs.message + (cs.end == RunEnd::kConverged ? " at a rank-deficient point" : "") +
+                 "; solved again with Ceres: ";
+          ToSolver(s, st.data(), u.data());
+          watch.Reset();
+        }
       }
-      run.iterations = static_cast<int>(sum.iterations.size()) - 1;
-      run.termination = sum.termination_type;
-      run.cost = sum.final_cost;
-      run.message = sum.message;
+      if (!solved) {
+        ceres::Solver::Summary sum;
+        ceres::Solve(so, open_first || !has_box ? &open_problem : &bounded_problem(), &sum);
+        if (open_first && !(sum.termination_type == ceres::CONVERGENCE && inside_box() && identified())) {
+          ToSolver(s, st.data(), u.data());
+          watch.Reset();
+          ceres::Solve(so, &bounded_problem(), &sum);
+        }
+        run.iterations = static_cast<int>(sum.iterations.size()) - 1;
+        run.end = sum.termination_type == ceres::USER_SUCCESS && watch.coordinate() >= 0
+                      ? RunEnd::kStalled
+                      : RunEndOf(sum.termination_type);
+        run.cost = sum.final_cost;
+        run.message = note + sum.message;
+      }
+      if (run.end == RunEnd::kStalled) {
+        run.message = DriftMessage(s, watch, run.iterations);
+        run.limit_coordinate = watch.coordinate();
+        run.limit_downwards = watch.downwards();
+      }
       if (std::string e = model_error(); !e.empty()) run.message = e;
     }
     run.u.assign(u.begin(), u.begin() + s.nf);
-    if (run.termination == ceres::CONVERGENCE) r.starts_converged += 1;
-    const bool usable = Usable(run.termination) && std::isfinite(run.cost);
-    const bool best_usable = Usable(best.termination) && std::isfinite(best.cost);
-    // Lowest cost wins; a converged run beats a non-converged one of (nearly) equal cost.
-    bool better = false;
-    if (usable && !best_usable) {
-      better = true;
-    } else if (usable && best_usable) {
-      const double tie = 1e-12 * std::max(best.cost, 1e-300);
-      better = run.cost < best.cost - tie ||
-               (std::abs(run.cost - best.cost) <= tie && run.termination == ceres::CONVERGENCE &&
-                best.termination != ceres::CONVERGENCE);
-    } else if (!usable && !best_usable && best.message.empty()) {
-      better = true;  // keep the first failure's message
-    }
-    if (better) best = std::move(run);
+    if (run.end == RunEnd::kConverged) r.starts_converged += 1;
+    if (IsBetterRun(run, best)) best = std::move(run);
   }
 
-  r.status = StatusOf(best.termination);
+  r.status = StatusOf(best.end);
   r.iterations = best.iterations;
   r.message = best.message;
-  if (!(Usable(best.termination) && std::isfinite(best.cost))) {
+  if (!(Usable(best.end) && std::isfinite(best.cost))) {
     r.status = FitStatus::kNumericalFailure;
     if (r.message.empty()) r.message = "no start gave a finite cost";
     return r;
@@ -713,11 +696,16 @@ FitResult Fit(const FitRequest& req) {
     q.start = best.start[j] * q.si_factor;
     q.std_error = q.fixed ? 0.0 : kNaN;
     if (!q.fixed) {
-      const double tol_lo = 1e-6 * std::max(std::abs(s.lower[j]), 1.0);
-      const double tol_hi = 1e-6 * std::max(std::abs(s.upper[j]), 1.0);
-      // ln(theta) never reaches a lower bound of 0, so that bound is not reported.
-      q.at_lower = std::isfinite(s.lower[j]) && !(s.log[j] && s.lower[j] == 0) && theta[j] - s.lower[j] <= tol_lo;
-      q.at_upper = std::isfinite(s.upper[j]) && s.upper[j] - theta[j] <= tol_hi;
+      BoundFlags(theta[j], s.lower[j], s.upper[j], s.log[j], q.at_lower, q.at_upper);
+    }
+  }
+  // A run stopped at a limit: its running parameter is at (toward) that bound.
+  if (best.end == RunEnd::kStalled && best.limit_coordinate >= 0) {
+    ParameterResult& q = r.parameters[static_cast<size_t>(s.free_index[static_cast<size_t>(best.limit_coordinate)])];
+    if (best.limit_downwards) {
+      q.at_lower = true;
+    } else {
+      q.at_upper = true;
     }
   }
 
@@ -727,26 +715,8 @@ FitResult Fit(const FitRequest& req) {
   const Eigen::VectorXd fitted_w = s.y - res.cwiseProduct(s.sigma);
   const Eigen::VectorXd raw_si = (s.y - fitted_w) * m.y_si_factor;
   r.rmse = std::sqrt(raw_si.squaredNorm() / s.n);
-  {
-    const Eigen::VectorXd w = s.sigma.cwiseAbs2().cwiseInverse();
-    const double ybar = w.dot(s.y) / w.sum();
-    const double ss_tot = w.dot((s.y.array() - ybar).square().matrix());
-    r.r_squared = ss_tot > 0 ? 1.0 - r.ssr / ss_tot : kNaN;
-  }
-  {
-    const double n = s.n;
-    double k, m2lnl;  // -2 ln L up to constants shared by every model on the same data
-    if (opt.scale_covariance) {
-      k = s.nf + 1.0;
-      m2lnl = n * std::log(r.ssr / n);
-    } else {
-      k = s.nf;
-      m2lnl = r.ssr;
-    }
-    r.aic = m2lnl + 2 * k;
-    r.aicc = n > k + 1 ? r.aic + 2 * k * (k + 1) / (n - k - 1) : kNaN;
-    r.bic = m2lnl + k * std::log(n);
-  }
+  r.r_squared = WeightedRSquared(s.y, s.sigma, r.ssr);
+  InformationCriteria(r.ssr, s.n, s.nf, opt.scale_covariance, r.aic, r.aicc, r.bic);
 
   // ---- residual scale. Plain least squares: s^2 = SSR/(n-p). Robust loss:
   // with the per-point objective (1/2) rho(r^2), psi(r) = rho'(r^2) r and
@@ -820,17 +790,8 @@ FitResult Fit(const FitRequest& req) {
     r.covariance = dtheta.asDiagonal() * cov_u * dtheta.asDiagonal();
     if (opt.scale_covariance) r.covariance *= variance_factor;
     r.covariance_ok = !r.rank_deficient && r.covariance.allFinite();
-    r.correlation.resize(s.nf, s.nf);
-    for (int a = 0; a < s.nf; ++a) {
-      const int j = s.free_index[a];
-      r.parameters[j].std_error = std::sqrt(r.covariance(a, a));
-      for (int b = 0; b < s.nf; ++b) {
-        const double den = std::sqrt(r.covariance(a, a) * r.covariance(b, b));
-        r.correlation(a, b) = a == b ? 1.0 : (den > 0 ? r.covariance(a, b) / den : kNaN);
-        if (a != b && std::isfinite(r.correlation(a, b)))
-          r.max_abs_correlation = std::max(r.max_abs_correlation, std::abs(r.correlation(a, b)));
-      }
-    }
+    for (int a = 0; a < s.nf; ++a) r.parameters[s.free_index[a]].std_error = std::sqrt(r.covariance(a, a));
+    Correlations(r.covariance, r.correlation, r.max_abs_correlation);
     r.high_correlation = r.max_abs_correlation > opt.correlation_threshold;
   }
 
@@ -877,18 +838,7 @@ FitResult Fit(const FitRequest& req) {
   d.leverage = Leverages(J);
   d.standardized = StudentizedResiduals(d.raw, d.sigma, d.leverage, std::sqrt(scale2));
   d.robust_weight = loss ? weight : Eigen::VectorXd::Ones(s.n);
-  std::vector<int> order(s.n);
-  std::iota(order.begin(), order.end(), 0);
-  std::stable_sort(order.begin(), order.end(), [&](int a, int b) { return s.x[a] < s.x[b]; });
-  Eigen::VectorXd ordered(s.n);
-  for (int i = 0; i < s.n; ++i) ordered(i) = res(order[i]);
-  const RunsTest runs = WaldWolfowitzRuns(ordered);
-  d.runs = runs.runs;
-  d.n_positive = runs.n_positive;
-  d.n_negative = runs.n_negative;
-  d.runs_z = runs.z;
-  d.runs_p = runs.p;
-  d.durbin_watson = DurbinWatson(ordered);
+  OrderDiagnostics(s.x, res, d);
   return r;
 }
 

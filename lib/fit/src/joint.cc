@@ -14,14 +14,13 @@
 
 #include "porofit/core/error.h"
 #include "porofit/fit/diagnostics.h"
+#include "solve_common.h"
 
 namespace porofit {
 namespace {
 
-constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
-constexpr double kInf = std::numeric_limits<double>::infinity();
-
-using RowMajor = Eigen::Matrix<double, Eigen::Dynamic, Eigen::Dynamic, Eigen::RowMajor>;
+using namespace fit_detail;
+using RowMajor = RowMajorMatrix;
 
 struct Dataset {
   Eigen::VectorXd x, y, sigma;  // working units
@@ -117,15 +116,6 @@ std::string Si(double working, const ParameterSpec& ps) {
 
 std::string Label(const JointFitRequest& req, size_t k) {
   return k < req.labels.size() && !req.labels[k].empty() ? req.labels[k] : std::to_string(k + 1);
-}
-
-// As in Fit: a heuristic or perturbed value is moved strictly inside the box.
-double IntoBounds(double t, double base, double lo, double hi, bool log) {
-  if (log && !(t > 0)) t = base > 0 ? base : (hi < kInf ? 0.5 * hi : 1.0);
-  if (t >= lo && t <= hi && (!log || t > 0)) return t;
-  const double b = std::clamp(base, lo, hi);
-  if (t < lo) return (b > lo) ? lo + 0.5 * (b - lo) : lo;
-  return (b < hi) ? hi - 0.5 * (hi - b) : hi;
 }
 
 double Median(std::vector<double> v) {
@@ -326,38 +316,6 @@ std::string Prepare(const JointFitRequest& req, Setup& s, FitStatus& status) {
   return {};
 }
 
-// (J^T J)^+ from the SVD of the column-equilibrated Jacobian (as Fit's
-// "eigen-svd" covariance), with its rank at reciprocal condition min_rcond.
-Eigen::MatrixXd Covariance(const Eigen::MatrixXd& J, double min_rcond, int& rank) {
-  Eigen::VectorXd c(J.cols());
-  for (Eigen::Index k = 0; k < J.cols(); ++k) {
-    const double norm = J.col(k).norm();
-    c(k) = norm > 0 && std::isfinite(norm) ? 1.0 / norm : 1.0;
-  }
-  Eigen::JacobiSVD<Eigen::MatrixXd> svd(J * c.asDiagonal(), Eigen::ComputeThinV);
-  const Eigen::VectorXd& sv = svd.singularValues();
-  Eigen::VectorXd inv2 = Eigen::VectorXd::Zero(J.cols());
-  rank = 0;
-  for (Eigen::Index k = 0; k < sv.size(); ++k) {
-    const double ratio = sv(0) > 0 ? sv(k) / sv(0) : 0.0;
-    if (ratio * ratio >= min_rcond) {
-      inv2(k) = 1.0 / (sv(k) * sv(k));
-      ++rank;
-    }
-  }
-  return c.asDiagonal() * (svd.matrixV() * inv2.asDiagonal() * svd.matrixV().transpose()) * c.asDiagonal();
-}
-
-FitStatus StatusOf(ceres::TerminationType t) {
-  switch (t) {
-    case ceres::CONVERGENCE: return FitStatus::kConverged;
-    case ceres::NO_CONVERGENCE: return FitStatus::kMaxIterations;
-    default: return FitStatus::kNumericalFailure;
-  }
-}
-
-bool Usable(ceres::TerminationType t) { return t == ceres::CONVERGENCE || t == ceres::NO_CONVERGENCE; }
-
 }  // namespace
 
 FitRequest SeparateRequest(const JointFitRequest& request, size_t k) {
@@ -421,11 +379,7 @@ JointFitResult FitJoint(const JointFitRequest& req) {
       return r;
     }
     const double lo = s.lower[j], hi = s.upper[j];
-    const double centre = std::isfinite(lo) && std::isfinite(hi) ? 0.5 * (lo + hi)
-                          : std::isfinite(lo)                    ? (s.log[j] ? std::max(2 * lo, 1.0) : lo + 1)
-                          : std::isfinite(hi)                    ? hi - 1
-                                                                 : 0.0;
-    base[static_cast<size_t>(c)] = s.user_start[j] ? v : IntoBounds(v, centre, lo, hi, s.log[j]);
+    base[static_cast<size_t>(c)] = s.user_start[j] ? v : IntoBounds(v, BoxCentre(lo, hi, s.log[j]), lo, hi, s.log[j]);
   }
   std::vector<std::vector<double>> starts{base};
   {
@@ -436,11 +390,8 @@ JointFitResult FitJoint(const JointFitRequest& req) {
       for (int c = 0; c < s.nc; ++c) {
         const auto j = static_cast<size_t>(s.coord_param[static_cast<size_t>(c)]);
         if (s.user_start[j]) continue;
-        const double b = base[static_cast<size_t>(c)];
-        const double z = normal(rng);
-        double v = (s.log[j] || (s.lower[j] >= 0 && b > 0)) ? b * std::exp(opt.start_spread * z)
-                                                             : b + opt.start_spread * std::max(std::abs(b), 1.0) * z;
-        st[static_cast<size_t>(c)] = IntoBounds(v, b, s.lower[j], s.upper[j], s.log[j]);
+        st[static_cast<size_t>(c)] =
+            PerturbStart(base[static_cast<size_t>(c)], normal(rng), opt.start_spread, s.lower[j], s.upper[j], s.log[j]);
       }
       starts.push_back(std::move(st));
     }
@@ -471,71 +422,40 @@ JointFitResult FitJoint(const JointFitRequest& req) {
       if (std::isfinite(hi)) problem.SetParameterUpperBound(u.data(), c, hi);
     }
   }
-  ceres::Solver::Options so;
-  so.minimizer_type = ceres::TRUST_REGION;
-  so.trust_region_strategy_type = ceres::LEVENBERG_MARQUARDT;
-  so.linear_solver_type = ceres::DENSE_QR;
-  so.logging_type = ceres::SILENT;
-  so.minimizer_progress_to_stdout = false;
-  so.max_num_iterations = opt.max_iterations;
-  so.function_tolerance = opt.function_tolerance;
-  so.gradient_tolerance = opt.gradient_tolerance;
-  so.parameter_tolerance = opt.parameter_tolerance;
-  so.num_threads = 1;
-
-  struct Run {
-    std::vector<double> start, u;
-    double cost = kInf;
-    ceres::TerminationType termination = ceres::FAILURE;
-    int iterations = 0;
-    std::string message;
-  };
-  Run best;
+  const ceres::Solver::Options so = CeresOptions(opt);
+  SolverRun best;
   std::vector<double> res0(static_cast<size_t>(s.n)), jac0(static_cast<size_t>(s.n) * static_cast<size_t>(std::max(s.nc, 1)));
   for (const std::vector<double>& st : starts) {
-    Run run;
+    SolverRun run;
     run.start = st;
     r.starts_tried += 1;
     to_u(st);
     if (!cost.EvaluateAt(u.data(), res0.data(), s.nc > 0 ? jac0.data() : nullptr)) {
       run.message = cost.error().empty() ? "model or its derivative is not finite at the start" : cost.error();
-      if (best.message.empty() && !Usable(best.termination)) best = run;
+      if (best.message.empty() && !Usable(best.end)) best = run;
       continue;
     }
     if (s.nc == 0) {
       run.cost = 0.5 * std::inner_product(res0.begin(), res0.end(), res0.begin(), 0.0);
-      run.termination = ceres::CONVERGENCE;
+      run.end = RunEnd::kConverged;
       run.message = "all parameters fixed: nothing to solve";
     } else {
       ceres::Solver::Summary sum;
       ceres::Solve(so, &problem, &sum);
       run.iterations = static_cast<int>(sum.iterations.size()) - 1;
-      run.termination = sum.termination_type;
+      run.end = RunEndOf(sum.termination_type);
       run.cost = sum.final_cost;
       run.message = sum.message;
       if (!cost.error().empty()) run.message = cost.error();
     }
     run.u.assign(u.begin(), u.begin() + s.nc);
-    if (run.termination == ceres::CONVERGENCE) r.starts_converged += 1;
-    const bool usable = Usable(run.termination) && std::isfinite(run.cost);
-    const bool best_usable = Usable(best.termination) && std::isfinite(best.cost);
-    bool better = false;
-    if (usable && !best_usable) {
-      better = true;
-    } else if (usable && best_usable) {
-      const double tie = 1e-12 * std::max(best.cost, 1e-300);
-      better = run.cost < best.cost - tie || (std::abs(run.cost - best.cost) <= tie &&
-                                              run.termination == ceres::CONVERGENCE &&
-                                              best.termination != ceres::CONVERGENCE);
-    } else if (!usable && !best_usable && best.message.empty()) {
-      better = true;
-    }
-    if (better) best = std::move(run);
+    if (run.end == RunEnd::kConverged) r.starts_converged += 1;
+    if (IsBetterRun(run, best)) best = std::move(run);
   }
-  r.status = StatusOf(best.termination);
+  r.status = StatusOf(best.end);
   r.iterations = best.iterations;
   r.message = best.message;
-  if (!(Usable(best.termination) && std::isfinite(best.cost))) {
+  if (!(Usable(best.end) && std::isfinite(best.cost))) {
     r.status = FitStatus::kNumericalFailure;
     if (r.message.empty()) r.message = "no start gave a finite cost";
     return r;
@@ -558,20 +478,7 @@ JointFitResult FitJoint(const JointFitRequest& req) {
   r.chi2_reduced = r.dof > 0 ? r.ssr / r.dof : kNaN;
   r.residual_scale = std::sqrt(r.chi2_reduced);
   r.variance_factor = opt.scale_covariance ? r.chi2_reduced : 1.0;
-  {
-    const double n = s.n;
-    double k, m2lnl;  // -2 ln L up to constants, as FitResult::aic
-    if (opt.scale_covariance) {
-      k = s.nc + 1.0;
-      m2lnl = n * std::log(r.ssr / n);
-    } else {
-      k = s.nc;
-      m2lnl = r.ssr;
-    }
-    r.aic = m2lnl + 2 * k;
-    r.aicc = n > k + 1 ? r.aic + 2 * k * (k + 1) / (n - k - 1) : kNaN;
-    r.bic = m2lnl + k * std::log(n);
-  }
+  InformationCriteria(r.ssr, s.n, s.nc, opt.scale_covariance, r.aic, r.aicc, r.bic);
 
   // ---- coordinates and the joint covariance (SI).
   Eigen::VectorXd dtheta(s.nc);
@@ -590,22 +497,14 @@ JointFitResult FitJoint(const JointFitRequest& req) {
     dtheta(c) = (s.log[j] ? t : 1.0) * m.parameters[j].si_factor;
   }
   if (opt.covariance && s.nc > 0) {
-    int rank = 0;
-    const Eigen::MatrixXd cov_u = Covariance(J, opt.min_reciprocal_condition, rank);
-    r.rank_deficient = rank < s.nc;
+    const CovarianceOut cov = EigenCovariance(J, opt.min_reciprocal_condition);
+    const Eigen::MatrixXd& cov_u = cov.cov_u;
+    r.rank_deficient = cov.rank < s.nc;
     r.covariance = dtheta.asDiagonal() * cov_u * dtheta.asDiagonal();
     if (opt.scale_covariance) r.covariance *= r.variance_factor;
     r.covariance_ok = !r.rank_deficient && r.covariance.allFinite();
-    r.correlation.resize(s.nc, s.nc);
-    for (int a = 0; a < s.nc; ++a) {
-      r.coordinates[static_cast<size_t>(a)].std_error = std::sqrt(r.covariance(a, a));
-      for (int b = 0; b < s.nc; ++b) {
-        const double den = std::sqrt(r.covariance(a, a) * r.covariance(b, b));
-        r.correlation(a, b) = a == b ? 1.0 : (den > 0 ? r.covariance(a, b) / den : kNaN);
-        if (a != b && std::isfinite(r.correlation(a, b)))
-          r.max_abs_correlation = std::max(r.max_abs_correlation, std::abs(r.correlation(a, b)));
-      }
-    }
+    for (int a = 0; a < s.nc; ++a) r.coordinates[static_cast<size_t>(a)].std_error = std::sqrt(r.covariance(a, a));
+    Correlations(r.covariance, r.correlation, r.max_abs_correlation);
     if (r.max_abs_correlation > opt.correlation_threshold)
       r.warnings.push_back("|correlation| = " + FormatNumber(r.max_abs_correlation) + " exceeds " +
                            FormatNumber(opt.correlation_threshold) + ": parameters are not separately identifiable");
@@ -647,10 +546,7 @@ JointFitResult FitJoint(const JointFitRequest& req) {
         const double st = best.start[static_cast<size_t>(c)];
         q.start = st * ps.si_factor;
         q.std_error = r.coordinates[static_cast<size_t>(c)].std_error;
-        const double tol_lo = 1e-6 * std::max(std::abs(s.lower[j]), 1.0);
-        const double tol_hi = 1e-6 * std::max(std::abs(s.upper[j]), 1.0);
-        q.at_lower = std::isfinite(s.lower[j]) && !(s.log[j] && s.lower[j] == 0) && theta[k][j] - s.lower[j] <= tol_lo;
-        q.at_upper = std::isfinite(s.upper[j]) && s.upper[j] - theta[k][j] <= tol_hi;
+        BoundFlags(theta[k][j], s.lower[j], s.upper[j], s.log[j], q.at_lower, q.at_upper);
         v.free_index.push_back(static_cast<int>(j));
         info.coordinate.push_back(c);
         if (!s.shared[j]) info.p_own += 1;
@@ -676,12 +572,7 @@ JointFitResult FitJoint(const JointFitRequest& req) {
     const Eigen::VectorXd fitted_w = d.y - rk.cwiseProduct(d.sigma);
     const Eigen::VectorXd raw = (d.y - fitted_w) * m.y_si_factor;
     v.rmse = std::sqrt(raw.squaredNorm() / nk);
-    {
-      const Eigen::VectorXd w = d.sigma.cwiseAbs2().cwiseInverse();
-      const double ybar = w.dot(d.y) / w.sum();
-      const double ss_tot = w.dot((d.y.array() - ybar).square().matrix());
-      v.r_squared = ss_tot > 0 ? 1.0 - v.ssr / ss_tot : kNaN;
-    }
+    v.r_squared = WeightedRSquared(d.y, d.sigma, v.ssr);
     const int p_shared = static_cast<int>(pk) - info.p_own;
     info.dof_share = nk - info.p_own - static_cast<double>(p_shared) * nk / s.n;
     info.chi2_share = info.dof_share > 0 ? v.ssr / info.dof_share : kNaN;
@@ -722,18 +613,7 @@ JointFitResult FitJoint(const JointFitRequest& req) {
       rd.leverage = leverage.size() == s.n ? Eigen::VectorXd(leverage.segment(d.first, nk)) : Eigen::VectorXd::Zero(nk);
       rd.standardized = StudentizedResiduals(rd.raw, rd.sigma, rd.leverage, r.residual_scale);
       rd.robust_weight = Eigen::VectorXd::Ones(nk);
-      std::vector<int> order(static_cast<size_t>(nk));
-      std::iota(order.begin(), order.end(), 0);
-      std::stable_sort(order.begin(), order.end(), [&](int a, int b) { return d.x[a] < d.x[b]; });
-      Eigen::VectorXd ordered(nk);
-      for (int i = 0; i < nk; ++i) ordered(i) = rk(order[static_cast<size_t>(i)]);
-      const RunsTest runs = WaldWolfowitzRuns(ordered);
-      rd.runs = runs.runs;
-      rd.n_positive = runs.n_positive;
-      rd.n_negative = runs.n_negative;
-      rd.runs_z = runs.z;
-      rd.runs_p = runs.p;
-      rd.durbin_watson = DurbinWatson(ordered);
+      OrderDiagnostics(d.x, rk, rd);
     }
     r.datasets.push_back(std::move(v));
     r.info.push_back(std::move(info));

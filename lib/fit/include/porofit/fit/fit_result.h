@@ -15,6 +15,14 @@ enum class FitStatus {
   kNumericalFailure,  ///< model undefined / non-finite everywhere tried
   kTooFewPoints,      ///< fewer points than free parameters (n < p)
   kInvalidRequest,    ///< bounds, fixed values or starts inconsistent
+  /// The best fit lies at a limit of the parameter space: a parameter ran
+  /// monotonically toward a bound (or 0 / infinity for a log parameter) while
+  /// the cost stopped improving (relative change < 1e-6 over 10 iterations),
+  /// e.g. power-offset's P_r -> 0 on saturating data, where the model turns
+  /// into power-ref. The estimates are the last iterate near that limit: the
+  /// running parameter (flagged at_lower / at_upper) and those traded off
+  /// against it are not determined; the message names the parameter.
+  kAtLimit,
 };
 std::string_view ToString(FitStatus s);
 
