@@ -9,7 +9,6 @@
 #include <gtest/gtest.h>
 
 #include <algorithm>
-#include <chrono>
 #include <cmath>
 #include <cstdio>
 #include <cstring>
@@ -390,7 +389,7 @@ TEST(DensityLog, InventedFixtureInFeetFromKbIntegratesToTheAnalyticLoad) {
   EXPECT_EQ(idx.SourcesAbove(p.depth.back()), 0x0F);
 }
 
-TEST(LasReader, ParsesATenThousandRowFileInWellUnderASecond) {
+TEST(LasReader, ParsesATenThousandRowFileWrappedAndUnwrappedAlike) {
   LasSpec s = FiveCurves(false);
   for (auto& c : s.cols) c.clear();
   std::mt19937_64 rng(7);
@@ -399,17 +398,15 @@ TEST(LasReader, ParsesATenThousandRowFileInWellUnderASecond) {
     s.cols[0].push_back(1000.0 + 0.1524 * i);
     for (size_t c = 1; c < 6; ++c) s.cols[c].push_back(2.0 + u(rng));
   }
+  // Tests never assert wall-clock times (speed is a benchmark's job).
+  std::vector<LasFile> parsed;
   for (const bool wrap : {false, true}) {
     s.wrap = wrap;
-    const std::string text = LasText(s);
-    const auto t0 = std::chrono::steady_clock::now();
-    const LasFile las = ParseLas(text, "big.las");
-    const double ms = std::chrono::duration<double, std::milli>(std::chrono::steady_clock::now() - t0).count();
-    std::printf("ParseLas: 10000 rows x 6 curves (%s, %zu bytes) in %.1f ms\n", wrap ? "wrapped" : "unwrapped",
-                text.size(), ms);
-    EXPECT_EQ(las.curves[5].values.size(), 10000u);
-    EXPECT_LT(ms, 1000.0);
+    parsed.push_back(ParseLas(LasText(s), "big.las"));
+    ASSERT_EQ(parsed.back().curves.size(), 6u);
+    EXPECT_EQ(parsed.back().curves[5].values.size(), 10000u);
   }
+  for (size_t c = 0; c < 6; ++c) EXPECT_EQ(parsed[0].curves[c].values, parsed[1].curves[c].values) << c;
 }
 
 TEST(LasReader, ExtractCurveDropsNullRowsAndKeepsTheUnit) {

@@ -3,7 +3,6 @@
 
 #include <gtest/gtest.h>
 
-#include <chrono>
 #include <cmath>
 #include <cstdio>
 #include <random>
@@ -101,14 +100,8 @@ TEST(CumulativeLoad, FiftyThousandDepthsOnTenThousandSamplesAgreeWithDirectSumsA
   std::vector<double> at(50000);
   for (double& a : at) a = p.depth.front() - 10.0 + (p.depth.back() - p.depth.front() + 10.0) * u(rng);
 
-  const auto t0 = std::chrono::steady_clock::now();
+  // Tests never assert wall-clock times; bench/depth_bench.cc times tables on such profiles.
   const std::vector<double> s = CumulativeLoad(p, at);
-  const auto t1 = std::chrono::steady_clock::now();
-  const double ms = std::chrono::duration<double, std::milli>(t1 - t0).count();
-  std::printf("CumulativeLoad: 50000 depths on 10000 samples in %.2f ms\n", ms);
-  RecordProperty("cumulative_load_ms", std::to_string(ms));
-  // A quadratic implementation takes seconds here; the binary search takes milliseconds.
-  EXPECT_LT(ms, 500.0);
 
   for (size_t q = 0; q < at.size(); q += 997) {
     double sum = 0;

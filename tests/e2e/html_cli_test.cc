@@ -96,6 +96,12 @@ std::vector<std::string> ExpectedFigures(const std::string& study_path) {
     for (const char* f : {"k-fit", "residuals", "std-residuals"}) keys.push_back(slug + "_" + f);
     if (ss.grain.given) keys.push_back(slug + "_alpha");
   }
+  for (const DepthTableChoice& t : study.depth_tables) {
+    std::string slug;
+    for (char c : t.spec.name)
+      slug += std::isalnum(static_cast<unsigned char>(c)) || c == '-' || c == '_' ? c : '_';
+    for (const char* f : {"stress", "alpha", "k"}) keys.push_back("depth-" + slug + "_" + f);
+  }
   return keys;
 }
 

@@ -219,8 +219,9 @@ TEST(DepthTableFiles, ReportFileNamesListTheTablesBeforeResultsJson) {
   const StudyRun run = WithDepthTable(DepthUnits::kSi, BandConvention::kNonExceedance);
   const std::vector<std::string> names = ReportFileNames(run.study);
   ASSERT_EQ(names.size(), ReportFileNames().size() + 1);
-  EXPECT_EQ(names[names.size() - 2], "depth_w1.csv");
-  EXPECT_EQ(names.back(), "results.json");
+  EXPECT_EQ(names[names.size() - 3], "depth_w1.csv");
+  EXPECT_EQ(names[names.size() - 2], "results.json");
+  EXPECT_EQ(names.back(), "report.html");
 }
 
 }  // namespace

@@ -7,6 +7,7 @@
 #include <sstream>
 
 #include "format.h"
+#include "html_figures.h"
 #include "html_util.h"
 #include "porofit/report/html.h"
 
@@ -112,7 +113,17 @@ HtmlReport::HtmlReport(const Study& study, const RunMetadata& metadata, const st
 
 std::string HtmlReport::Head() const {
   std::ostringstream o;
-  o << "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n"
+  // The cautions open the file itself too (as they open every output file),
+  // for anyone who reads the source rather than the rendered page.
+  auto comment = [](std::string text) {
+    for (size_t k = text.find("--"); k != std::string::npos; k = text.find("--", k)) text.replace(k, 2, "- -");
+    return text;
+  };
+  o << "<!DOCTYPE html>\n<!--\n" << comment(CautionText()) << "\n";
+  const std::string notice = InventedNotice(study_);
+  if (!notice.empty()) o << comment(notice) << "\n";
+  o << "-->\n";
+  o << "<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n"
     << "<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n"
     << "<meta name=\"generator\" content=\"porofit " << Esc(metadata_.tool_version) << "\">\n"
     << "<title>porofit report: " << Esc(study_.name) << "</title>\n<style>" << kStyle << "</style>\n</head>\n<body>\n";
