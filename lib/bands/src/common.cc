@@ -26,24 +26,22 @@ double TwoSidedT(double confidence, double dof) {
   return boost::math::quantile(boost::math::students_t_distribution<double, Fast>(dof), q);
 }
 
-namespace detail {
-
 TQuantileCurve::TQuantileCurve(double confidence, double nu_fit) : confidence_(confidence), nu_fit_(nu_fit) {
   if (!(nu_fit >= 2) || std::isinf(nu_fit)) return;
   // Chebyshev interpolation of q(u) = t_q(nu_fit / u) on u in [0, 1]
   // (u = 0 is the normal limit).
   constexpr int N = 24;
-  std::vector<double> f(N);
+  static_assert(N == kNodes);
+  double f[N];
   for (int k = 0; k < N; ++k) {
     const double x = std::cos(std::numbers::pi * (k + 0.5) / N);
     const double u = 0.5 * (x + 1.0);
-    f[static_cast<size_t>(k)] = TwoSidedT(confidence, u > 0 ? nu_fit / u : kInf);
+    f[k] = TwoSidedT(confidence, u > 0 ? nu_fit / u : detail::kInf);
   }
-  coef_.assign(N, 0.0);
   for (int j = 0; j < N; ++j) {
     double acc = 0;
-    for (int k = 0; k < N; ++k) acc += f[static_cast<size_t>(k)] * std::cos(std::numbers::pi * j * (k + 0.5) / N);
-    coef_[static_cast<size_t>(j)] = 2.0 * acc / N;
+    for (int k = 0; k < N; ++k) acc += f[k] * std::cos(std::numbers::pi * j * (k + 0.5) / N);
+    coef_[j] = 2.0 * acc / N;
   }
   coef_[0] *= 0.5;
   exact_ = false;
@@ -55,7 +53,7 @@ double TQuantileCurve::operator()(double nu) const {
   const double x = 2.0 * u - 1.0;
   // Clenshaw recurrence.
   double b1 = 0, b2 = 0;
-  for (size_t j = coef_.size() - 1; j >= 1; --j) {
+  for (int j = kNodes - 1; j >= 1; --j) {
     const double b0 = 2.0 * x * b1 - b2 + coef_[j];
     b2 = b1;
     b1 = b0;
@@ -63,7 +61,7 @@ double TQuantileCurve::operator()(double nu) const {
   return x * b1 - b2 + coef_[0];
 }
 
-}  // namespace detail
+
 
 double WelchSatterthwaiteDof(double v_fit, double dof_fit, double v_known) {
   // nu_eff = (v_fit + v_known)^2 / (v_fit^2/nu_fit + v_known^2/inf)

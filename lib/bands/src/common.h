@@ -1,5 +1,6 @@
 #pragma once
 // Private helpers shared by the band methods.
+#include "porofit/bands/quantile.h"
 #include <algorithm>
 #include <cmath>
 #include <exception>
@@ -47,16 +48,7 @@ bool CurveAt(const ModelSpec& m, const double* theta, const std::vector<double>&
 // own nu; a Chebyshev interpolant in u built from 24 exact quantiles is
 // within 1e-9 of the exact quantile for nu_fit >= 2 (tests check it against the exact
 // quantile) and costs nanoseconds. nu_fit < 2 or infinite: exact calls.
-class TQuantileCurve {
- public:
-  TQuantileCurve(double confidence, double nu_fit);
-  double operator()(double nu) const;
-
- private:
-  double confidence_, nu_fit_;
-  bool exact_ = true;
-  std::vector<double> coef_;
-};
+using TQuantileCurve = ::porofit::bands::TQuantileCurve;  // porofit/bands/quantile.h
 
 // Percentile bands of K and alpha = 1 - K/K_s from a draws x grid matrix of
 // K (row-major: row d holds K at every grid point for draw d) and the K_s of

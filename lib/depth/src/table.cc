@@ -7,6 +7,7 @@
 #include <Eigen/Core>
 
 #include "porofit/bands/bands.h"
+#include "porofit/bands/quantile.h"
 #include "porofit/core/error.h"
 #include "table_internal.h"
 
@@ -118,7 +119,7 @@ void BandRows(const DepthTableSpec& s, size_t curve, const std::vector<size_t>& 
   const double k_dof = f.covariance_scaled ? static_cast<double>(f.dof) : kInf;
   const bands::DeltaQuantile rule = s.band_quantile;
   const double k_quantile = bands::TwoSidedT(level, rule == bands::DeltaQuantile::kNormal ? kInf : k_dof);
-  const detail::TQuantile tq(level, k_dof);
+  const bands::TQuantileCurve tq(level, k_dof);
   const double ks = c.k_s, var_ks = c.sigma_k_s * c.sigma_k_s;
   const Eigen::MatrixXd& cov = f.covariance;
   const auto np = static_cast<Eigen::Index>(f.free_index.size());

@@ -1,5 +1,6 @@
 // The assumption sentences of a depth table (its CSV header lines and JSON
 // "assumptions"): every choice that shaped a number, in plain words, SI units.
+#include <cstdio>
 #include <cmath>
 
 #include "table_internal.h"
@@ -180,6 +181,12 @@ std::vector<std::string> DescribeAssumptions(const DepthTableSpec& s) {
                 "sigma'_v (no stress path), the evaluation pressure" +
                 std::string(biot ? ", the Biot fixed point" : "") + ", K and alpha recomputed (plug-in, no bands)");
   return a;
+}
+
+std::string Num(double v) {
+  char buf[32];
+  std::snprintf(buf, sizeof buf, "%.6g", v);
+  return buf;
 }
 
 }  // namespace porofit::depth::detail

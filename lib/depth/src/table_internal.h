@@ -47,21 +47,6 @@ Overburden ComputeOverburden(const DepthTableSpec& spec, const std::vector<doubl
 std::vector<double> ComputePorePressure(const DepthTableSpec& spec, const std::vector<double>& depth,
                                         const std::string& where);
 
-/// Two-sided Student t quantile as a function of the effective dof nu >=
-/// nu_fit: the same Chebyshev interpolant in u = nu_fit/nu (24 nodes) that
-/// lib/bands builds for its delta bands, so a table row and a band grid point
-/// at the same pressure get the same quantile; exact Boost calls when nu_fit
-/// < 2, nu_fit infinite or nu < nu_fit.
-class TQuantile {
- public:
-  TQuantile(double level, double nu_fit);
-  double operator()(double nu) const;
-
- private:
-  double level_, nu_fit_;
-  bool exact_ = true;
-  double coef_[24] = {};
-};
 
 /// "%.6g" for the assumption sentences.
 std::string Num(double v);
