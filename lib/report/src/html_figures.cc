@@ -1,6 +1,8 @@
 // The figures of the HTML report: which series each figure shows and what
 // its caption says (html_figures.h). Drawing is porofit::plot's; the small
 // adapter at the end maps these series onto its API.
+#include <cstdint>
+#include <limits>
 #include "html_figures.h"
 
 #include <algorithm>
@@ -416,7 +418,23 @@ std::vector<SampleFigure> DrawDepthFigures(const depth::DepthTable& table, bool 
   const std::string z_label = std::string("depth below datum (") + (field_units ? "ft" : "m") + ")";
   const std::string p_name = field_units ? "psi" : "MPa";
   std::vector<double> z, sv, pp, pe, k, kl, ku, a, al, au, fz_a, fa, fz_k, fk;
+  // Markers show the flags about the evaluation itself (extrapolation, alpha
+  // bounds, fixed point, stress, model); log gap/fill flags concern S_v and are
+  // in the stress figure's caption and the table, else they would mark every
+  // row below a filled log top.
+  const std::uint32_t marked = depth::kBelowLabRange | depth::kAboveLabRange | depth::kAlphaOutsideBounds |
+                               depth::kFixedPointNotConverged | depth::kNegativeEffectiveStress |
+                               depth::kModelUndefined;
+  const double nan = std::numeric_limits<double>::quiet_NaN();
+  int previous_curve = -2;
   for (const depth::DepthRow& r : table.rows) {
+    // A change of curve (interval or facies boundary) breaks the lines: the
+    // profile jumps there, it is not a gradual change.
+    if (previous_curve != -2 && r.curve != previous_curve) {
+      for (std::vector<double>* v : {&k, &kl, &ku, &a, &al, &au}) v->push_back(nan);
+      for (std::vector<double>* v : {&z, &sv, &pp, &pe}) v->push_back(v->back());
+    }
+    previous_curve = r.curve;
     z.push_back(r.depth / z_unit);
     sv.push_back(r.vertical_stress / p_unit);
     pp.push_back(r.pore_pressure / p_unit);
@@ -427,15 +445,25 @@ std::vector<SampleFigure> DrawDepthFigures(const depth::DepthTable& table, bool 
     a.push_back(r.alpha);
     al.push_back(r.alpha_lower);
     au.push_back(r.alpha_upper);
-    if (r.flags != 0 && std::isfinite(r.alpha)) {
+    if ((r.flags & marked) != 0 && std::isfinite(r.alpha)) {
       fz_a.push_back(r.depth / z_unit);
       fa.push_back(r.alpha);
     }
-    if (r.flags != 0 && std::isfinite(r.k_dry)) {
+    if ((r.flags & marked) != 0 && std::isfinite(r.k_dry)) {
       fz_k.push_back(r.depth / z_unit);
       fk.push_back(r.k_dry / units::kGPa);
     }
   }
+  size_t gap_rows = 0, fill_rows = 0;
+  for (const depth::DepthRow& r : table.rows) {
+    gap_rows += (r.flags & depth::kLogGap) != 0 ? 1 : 0;
+    fill_rows += (r.flags & depth::kLogFill) != 0 ? 1 : 0;
+  }
+  std::string log_note;
+  if (gap_rows + fill_rows > 0)
+    log_note = " S_v of " + std::to_string(fill_rows) + " of " + std::to_string(table.rows.size()) +
+               " rows integrates the user's fill trend above the log top (log-fill), and of " + std::to_string(gap_rows) +
+               " rows bridged or screened log samples (log-gap).";
   const std::string level = LevelText(table.spec.band_level);
   std::vector<SampleFigure> out;
   auto fig = [&](const char* name, const std::string& title, const std::string& x_label) {
@@ -455,7 +483,7 @@ std::vector<SampleFigure> DrawDepthFigures(const depth::DepthTable& table, bool 
     f.series.push_back({SeriesKind::kLine, "evaluation pressure", 2, false, pe, z, {}, {}, {}});
     out.push_back({"stress", Draw(f),
                    "<strong>" + Esc(table.spec.name) + ": vertical stress S_v, pore pressure P_p and the pressure at "
-                   "which K_dry is evaluated</strong>, against depth (increasing downward)."});
+                   "which K_dry is evaluated</strong>, against depth (increasing downward)." + log_note});
   }
   auto with_band = [&](const char* name, const std::string& title, const std::string& x_label,
                        const std::vector<double>& v, const std::vector<double>& lo, const std::vector<double>& hi,
@@ -464,13 +492,16 @@ std::vector<SampleFigure> DrawDepthFigures(const depth::DepthTable& table, bool 
     // Bands against depth: lower/upper are x values at each depth.
     f.series.push_back({SeriesKind::kBand, "", 0, false, z, {}, lo, hi, {}});
     f.series.push_back({SeriesKind::kLine, what, 0, false, v, z, {}, {}, {}});
-    if (!flag_z.empty()) f.series.push_back({SeriesKind::kMarkers, "flagged rows", 0, true, flag_v, flag_z, {}, {}, {}});
+    if (!flag_z.empty())
+      f.series.push_back({SeriesKind::kMarkers, "flagged (extrapolated, bounds...)", 0, true, flag_v, flag_z, {}, {}, {}});
     out.push_back({name, Draw(f),
                    "<strong>" + Esc(table.spec.name) + ": " + what + " against depth</strong> (increasing downward) "
                    "with the edges of its " + level + " delta-method band (dotted; K_s variance included, pressure treated as "
                    "exact). " +
                    (flag_z.empty() ? std::string("No row is flagged.")
-                                   : "Markers: flagged rows (see the flags column of the table).")});
+                                   : "Markers: rows flagged for extrapolation beyond the lab pressures, alpha outside [phi, 1], "
+                                     "a fixed point that did not converge, a non-positive effective stress or an "
+                                     "undefined model (see the flags column of the table).")});
   };
   with_band("alpha", "alpha(z): " + table.spec.name, "alpha", a, al, au, fz_a, fa, "alpha(z)");
   with_band("k", "K_dry(z): " + table.spec.name, "K_dry (GPa)", k, kl, ku, fz_k, fk, "K_dry(z)");
