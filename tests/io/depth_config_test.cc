@@ -301,5 +301,93 @@ TEST(DepthTablesSection, PorePressureTableMustCoverTheTable) {
   }
 }
 
+// A facies log (invented): code 1 from 1000 to 1900 m, code 2 from 2000 m,
+// with one fractional value at 2500 m when `bad`.
+std::string FaciesLas(bool bad) {
+  std::string s =
+      "~VERSION INFORMATION\n"
+      " VERS.   2.0 : CWLS LOG ASCII STANDARD - VERSION 2.0\n"
+      " WRAP.   NO  : ONE LINE PER DEPTH STEP\n"
+      "~WELL INFORMATION\n"
+      " STRT.M  1000.0 : START DEPTH\n"
+      " STOP.M  3100.0 : STOP DEPTH\n"
+      " STEP.M  100.0 : STEP\n"
+      " NULL.   -999.25 : NULL VALUE\n"
+      " COMP.   INVENTED : COMPANY\n"
+      " WELL.   T-1 : WELL\n"
+      " FLD .   TEST : FIELD\n"
+      " LOC .   NONE : LOCATION\n"
+      "~CURVE INFORMATION\n"
+      " DEPT.M    : DEPTH\n"
+      " FAC .     : FACIES CODE\n"
+      "~A\n";
+  for (int i = 0; i <= 21; ++i) {
+    const double z = 1000 + 100 * i;
+    const double code = bad && z == 2500 ? 1.5 : (z < 2000 ? 1 : 2);
+    s += std::to_string(z) + " " + std::to_string(code) + "\n";
+  }
+  return s;
+}
+
+const char* const kFacies =
+    "    facies:\n"
+    "      file: facies.las\n"
+    "      curve: FAC\n"
+    "      index_offset: 0 m\n"
+    "      codes:\n"
+    "        - {code: 1, sample: S1, model: exp-modulus}\n"
+    "        - {code: 2, sample: S1, model: exp-modulus}\n";
+
+const char* const kIntervals =
+    "    intervals:\n"
+    "      - {top: 1100 m, base: 2200 m, sample: S1, model: exp-modulus}\n";
+
+TEST(DepthTablesSection, FaciesCurveAndCodesAreRead) {
+  Scratch dir;
+  dir.Write("facies.las", FaciesLas(false));
+  const Study s = ParseStudy(Replace(kBase, kIntervals, kFacies), dir.Study(), ModelRegistry::Builtin());
+  const DepthTableChoice& t = s.depth_tables[0];
+  ASSERT_TRUE(t.spec.facies.has_value());
+  EXPECT_TRUE(t.spec.intervals.empty());
+  ASSERT_EQ(t.spec.facies->depth.size(), 22u);
+  EXPECT_DOUBLE_EQ(t.spec.facies->depth.front(), 1000.0);
+  EXPECT_EQ(t.spec.facies->code.front(), 1);
+  EXPECT_EQ(t.spec.facies->code[10], 2);  // 2000 m
+  ASSERT_EQ(t.spec.facies_rules.size(), 2u);
+  EXPECT_EQ(t.spec.facies_rules[0].code, 1);
+  EXPECT_EQ(t.spec.facies_rules[1].code, 2);
+  EXPECT_EQ(t.spec.facies_rules[0].curve, t.spec.facies_rules[1].curve);  // one curve, S1 exp-modulus
+  bool recorded = false;
+  for (const InputFile& f : s.inputs) recorded = recorded || (f.role == "data" && f.path.find("facies.las") != std::string::npos);
+  EXPECT_TRUE(recorded);
+}
+
+TEST(DepthTablesSection, FractionalFaciesCodeIsRejectedAtItsCurveLine) {
+  Scratch dir;
+  const std::string las = dir.Write("facies.las", FaciesLas(true));
+  try {
+    ParseStudy(Replace(kBase, kIntervals, kFacies), dir.Study(), ModelRegistry::Builtin());
+    FAIL() << "expected an error";
+  } catch (const InputError& e) {
+    EXPECT_EQ(e.location().file, las);
+    EXPECT_EQ(e.location().line, 15);  // the FAC line of ~C
+    EXPECT_NE(e.message().find("facies curve 'FAC' holds 1.5, not a whole-number code"), std::string::npos)
+        << e.message();
+  }
+}
+
+TEST(DepthTablesSection, FaciesCodeMappedTwiceIsRejectedAtTheCode) {
+  Scratch dir;
+  dir.Write("facies.las", FaciesLas(false));
+  const std::string text = Replace(Replace(kBase, kIntervals, kFacies), "{code: 2, sample", "{code: 1, sample");
+  try {
+    ParseStudy(text, dir.Study(), ModelRegistry::Builtin());
+    FAIL() << "expected an error";
+  } catch (const InputError& e) {
+    EXPECT_EQ(e.location().line, 33);  // the second code of the study text
+    EXPECT_NE(e.message().find("facies code 1 is mapped twice"), std::string::npos) << e.message();
+  }
+}
+
 }  // namespace
 }  // namespace porofit
