@@ -187,7 +187,8 @@ TEST(DepthStress, UniaxialStrainMeanStressIsTheCompactionFactorTimesSigmaV) {
   s.stress.measure = StressMeasure::kMeanEffective;
   s.stress.horizontal = HorizontalStressKind::kUniaxial;
   s.stress.poisson = 0.25;
-  const DepthRow& r = RowAt(BuildDepthTable(s), 3000);
+  const DepthTable built = BuildDepthTable(s);  // keep the rows alive
+  const DepthRow& r = RowAt(built, 3000);
   const double sv_eff = r.vertical_stress - r.pore_pressure;
   // Domain brief §8 check value 22 [computed]: (1 + nu)/(3 (1 - nu)) = 0.5556 at
   // nu 0.25; under uniaxial strain sigma'_m / sigma'_v is the same factor.
@@ -214,7 +215,8 @@ TEST(DepthStress, RatioMaxDefaultsToRatioAndIsStated) {
   for (const std::string& a : t.assumptions) stated = stated || a.find("taken equal to the sigma'_h ratio") != std::string::npos;
   EXPECT_TRUE(stated);
   s.stress.ratio_max = 0.9;
-  const DepthRow& r = RowAt(BuildDepthTable(s), 3000);
+  const DepthTable built = BuildDepthTable(s);  // keep the rows alive
+  const DepthRow& r = RowAt(built, 3000);
   EXPECT_NEAR(r.horizontal_stress_max, 0.9 * (r.vertical_stress - r.pore_pressure) + r.pore_pressure, 1e-6);
   // Vertical measure: the evaluation pressure is sigma'_v whatever the horizontal assumption.
   EXPECT_NEAR(r.evaluation_pressure, r.vertical_stress - r.pore_pressure, 1e-6);

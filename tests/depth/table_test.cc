@@ -101,7 +101,8 @@ TEST(DepthTableBands, RowAtALabPressureReproducesTheSampleDeltaBand) {
         DepthTableSpec t = Onshore(s, sigma_ks);
         t.band_level = level;
         t.band_quantile = rule;
-        const DepthRow& r = RowAt(BuildDepthTable(t), 2000);
+        const DepthTable built = BuildDepthTable(t);  // keep the rows alive
+        const DepthRow& r = RowAt(built, 2000);
         ASSERT_EQ(r.evaluation_pressure, 20e6);
 
         bands::BandRequest q = RequestFor(s, 37e9, sigma_ks, {20.0});
@@ -302,7 +303,8 @@ TEST(DepthTableFlags, NegativeEffectiveStressIsFlaggedAndStillEvaluated) {
   t.pore_pressure.kind = PorePressureKind::kTable;
   t.pore_pressure.depth = {0, 1000, 2000};
   t.pore_pressure.pressure = {0, 23e6, 40e6};  // invented: above S_v at 1000 m
-  const DepthRow& r = RowAt(BuildDepthTable(t), 1000);
+  const DepthTable built = BuildDepthTable(t);  // keep the rows alive
+  const DepthRow& r = RowAt(built, 1000);
   EXPECT_NEAR(r.evaluation_pressure, -1e6, 1e-3);
   EXPECT_EQ(r.flags, kNegativeEffectiveStress | kBelowLabRange) << FlagsToString(r.flags);
   EXPECT_TRUE(std::isfinite(r.k_dry));  // exp-modulus is defined at P < 0
