@@ -88,20 +88,6 @@ double Positive(const Field& f, Quantity q) {
   return v;
 }
 
-template <class E>
-E Choice(const Field& f, const std::vector<std::pair<std::string, E>>& choices) {
-  const std::string& text = f.Scalar();
-  std::vector<std::string> names;
-  for (const auto& [name, value] : choices) {
-    if (name == text) return value;
-    names.push_back(name);
-  }
-  std::string msg = Quote(f.path) + " = " + Quote(text) + " is not one of " + Join(names);
-  const std::string near = NearestWord(text, names);
-  if (!near.empty()) msg += "; did you mean " + Quote(near) + "?";
-  throw InputError(f.at, msg);
-}
-
 void Require(const Field& f, const MapReader& m, const std::string& path) {
   if (!f) throw InputError(m.at(), "missing required key " + Quote(path) + " in " + m.what());
 }
@@ -177,7 +163,7 @@ depth::Datum ReadDatum(const Field& f, const std::string& file) {
   m.Finish();
   Require(reference, m, f.path + ".reference");
   depth::Datum d;
-  d.kind = Choice<depth::DatumKind>(reference, {{"KB", depth::DatumKind::kKellyBushing},
+  d.kind = ParseChoice<depth::DatumKind>(reference, {{"KB", depth::DatumKind::kKellyBushing},
                                                 {"MSL", depth::DatumKind::kMeanSeaLevel},
                                                 {"GL", depth::DatumKind::kGroundLevel}});
   if (d.kind == depth::DatumKind::kKellyBushing) {
@@ -384,9 +370,9 @@ depth::StressSpec ReadStress(const Field& f, const std::string& file) {
   Require(measure, m, f.path + ".measure");
   Require(law, m, f.path + ".law");
   depth::StressSpec s;
-  s.measure = Choice<depth::StressMeasure>(
+  s.measure = ParseChoice<depth::StressMeasure>(
       measure, {{"vertical", depth::StressMeasure::kVerticalEffective}, {"mean", depth::StressMeasure::kMeanEffective}});
-  s.law = Choice<depth::EffectiveStressLaw>(
+  s.law = ParseChoice<depth::EffectiveStressLaw>(
       law, {{"terzaghi", depth::EffectiveStressLaw::kTerzaghi}, {"biot", depth::EffectiveStressLaw::kBiot}});
   if (tolerance) {
     s.tolerance = tolerance.Number();
@@ -594,7 +580,7 @@ DepthTableChoice ReadEntry(const YAML::Node& node, const std::string& file, cons
     throw InputError(name.at, Quote(name.path) + " = " + Quote(t.spec.name) +
                                   " must be 1 to 64 letters, digits, '-', '_' or '.' (it names the file depth_" +
                                   t.spec.name + ".csv)");
-  t.units = Choice<DepthUnits>(units_f, {{"field", DepthUnits::kField}, {"si", DepthUnits::kSi}});
+  t.units = ParseChoice<DepthUnits>(units_f, {{"field", DepthUnits::kField}, {"si", DepthUnits::kSi}});
   t.spec.datum = ReadDatum(datum, file);
 
   {
@@ -630,7 +616,7 @@ DepthTableChoice ReadEntry(const YAML::Node& node, const std::string& file, cons
     t.spec.band_level = nt->unit == "%" ? nt->value / 100.0 : nt->value;
     if (!(t.spec.band_level > 0 && t.spec.band_level < 1))
       throw InputError(level.at, Quote(level.path) + " = " + level.Scalar() + " must be in (0, 1)");
-    t.convention = Choice<BandConvention>(convention, {{"non-exceedance", BandConvention::kNonExceedance},
+    t.convention = ParseChoice<BandConvention>(convention, {{"non-exceedance", BandConvention::kNonExceedance},
                                                        {"exceedance", BandConvention::kExceedance}});
   }
   if (intervals) ReadIntervals(intervals, file, samples, t);

@@ -29,6 +29,7 @@ namespace porofit {
 namespace {
 
 using io::detail::Field;
+using io::detail::ParseChoice;
 using io::detail::MapReader;
 using io::detail::SplitNumberUnit;
 using io::detail::TypeName;
@@ -57,21 +58,6 @@ std::string Fixed(double v, int digits) {
   os.precision(digits);
   os << v;
   return os.str();
-}
-
-// Words accepted for an enumerated key; the error lists them all.
-template <class E>
-E ParseChoice(const Field& f, const std::vector<std::pair<std::string, E>>& choices) {
-  const std::string& text = f.Scalar();
-  std::vector<std::string> names;
-  for (const auto& [name, value] : choices) {
-    if (name == text) return value;
-    names.push_back(name);
-  }
-  std::string msg = Quote(f.path) + " = " + Quote(text) + " is not one of " + Join(names);
-  const std::string near = NearestWord(text, names);
-  if (!near.empty()) msg += "; did you mean " + Quote(near) + "?";
-  throw InputError(f.at, msg);
 }
 
 // SI factor of `unit` for quantity q; throws with the accepted units.

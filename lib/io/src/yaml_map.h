@@ -5,6 +5,7 @@
 #include <yaml-cpp/yaml.h>
 
 #include <string>
+#include <utility>
 #include <vector>
 
 #include "porofit/core/error.h"
@@ -70,5 +71,23 @@ class MapReader {
   std::string file_, what_, prefix_;
   SourceLocation at_;
 };
+
+/// The value of an enumerated key: one of the listed words, else an
+/// InputError at the value listing them all (with the nearest as a hint).
+template <class E>
+E ParseChoice(const Field& f, const std::vector<std::pair<std::string, E>>& choices) {
+  const std::string& text = f.Scalar();
+  std::vector<std::string> names;
+  std::string listed;
+  for (const auto& [name, value] : choices) {
+    if (name == text) return value;
+    names.push_back(name);
+    listed += (listed.empty() ? "" : ", ") + name;
+  }
+  std::string msg = "'" + f.path + "' = '" + text + "' is not one of " + listed;
+  const std::string near = NearestWord(text, names);
+  if (!near.empty()) msg += "; did you mean '" + near + "'?";
+  throw InputError(f.at, msg);
+}
 
 }  // namespace porofit::io::detail
