@@ -421,6 +421,21 @@ TEST(DepthTableDepletion, BiotScenariosSolveTheFixedPointAgain) {
   EXPECT_EQ(table.depletion_fixed_point_failures, 0);
 }
 
+TEST(DepthTableDepletion, ADropLargerThanThePorePressureIsFlagged) {
+  // P_p = 12 kPa/m x z: a 20 MPa drop leaves 1000 m at -8 MPa and 2000 m at +4 MPa.
+  const Sample& s = ExpSample();
+  DepthTableSpec t = Onshore(s);
+  t.depletion = {{"minus 20 MPa", 20e6}};
+  const DepthTable table = BuildDepthTable(t);
+  const DepthRow& shallow = RowAt(table, 1000);
+  EXPECT_NEAR(shallow.depletion[0].pore_pressure, -8e6, 1e-6);  // reported, not clipped
+  EXPECT_NE(shallow.depletion[0].flags & kNegativePorePressure, 0u);
+  EXPECT_EQ(shallow.flags & kNegativePorePressure, 0u);  // the undepleted row is not flagged
+  const DepthRow& deeper = RowAt(table, 2000);
+  EXPECT_EQ(deeper.depletion[0].flags & kNegativePorePressure, 0u);
+  EXPECT_EQ(FlagsToString(kNegativePorePressure), "negative-pore-pressure");
+}
+
 // ---------------------------------------------------------------- validation
 
 TEST(DepthTableValidation, CurvesAndMappingsAreChecked) {

@@ -32,7 +32,8 @@ double Datum::RockTop() const { return SurfaceDepth() + water_depth; }
 std::string FlagsToString(std::uint32_t flags) {
   static constexpr const char* kNames[] = {
       "below-lab-range", "above-lab-range", "log-gap", "log-fill", "alpha-outside-bounds",
-      "fixed-point-not-converged", "unmapped", "non-positive-effective-stress", "in-water", "model-undefined"};
+      "fixed-point-not-converged", "unmapped", "non-positive-effective-stress", "in-water", "model-undefined",
+      "negative-pore-pressure"};
   std::string out;
   for (std::uint32_t bit = 0; bit < sizeof(kNames) / sizeof(kNames[0]); ++bit) {
     if ((flags & (1u << bit)) == 0) continue;

@@ -244,6 +244,7 @@ DepthTable BuildDepthTable(const DepthTableSpec& spec) {
       DepletionValues& v = r.depletion[k];
       v.pore_pressure = r.pore_pressure - spec.depletion[k].drop;
       v.flags = carried;
+      if (v.pore_pressure < 0) v.flags |= kNegativePorePressure;
       v.evaluation_pressure = v.alpha = v.k_dry = v.vertical_effective = kNaN;
       if (!in_rock) continue;
       const Point p = Solve(cx, r.vertical_stress, v.pore_pressure, r.curve, true);

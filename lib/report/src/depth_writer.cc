@@ -174,7 +174,8 @@ std::vector<std::string> HeaderLines(const StudyRun& run, size_t index) {
     for (const std::string& a : r->table.assumptions) h.push_back("assumption: " + a);
   h.push_back("flags (';'-joined, see docs/outputs.md): below-lab-range, above-lab-range (extrapolated K), log-gap, "
               "log-fill, alpha-outside-bounds (alpha < porosity or > 1; never clipped), fixed-point-not-converged, "
-              "unmapped, non-positive-effective-stress, in-water, model-undefined; blank cell = not computed");
+              "unmapped, non-positive-effective-stress, in-water, model-undefined, negative-pore-pressure (depletion drop > P_p); "
+              "blank cell = not computed");
   for (const std::string& x : DepthCautions()) h.push_back("CAUTION: " + x);
   if (r == nullptr || !r->computed)
     h.push_back("NOT COMPUTED: " + (r == nullptr ? std::string("the table was not run") : r->message));

@@ -176,6 +176,7 @@ enum DepthFlag : std::uint32_t {
   kNegativeEffectiveStress = 1u << 7,  ///< evaluation pressure <= 0 (K evaluated at it only if the model allows)
   kInWater = 1u << 8,             ///< step above the rock top (no K)
   kModelUndefined = 1u << 9,      ///< K(P) not finite
+  kNegativePorePressure = 1u << 10,  ///< a depletion drop larger than P_p (depleted P_p < 0; values still computed, not clipped)
 };
 /// "below-lab-range;log-gap;..." (";"-joined, "" for none), in bit order.
 std::string FlagsToString(std::uint32_t flags);
