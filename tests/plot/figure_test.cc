@@ -201,6 +201,60 @@ TEST(Figure, BandWithNanSplitsIntoTwoPolygons) {
   EXPECT_EQ(Count(d, "Z"), 2u) << d;
 }
 
+// Vertices "x y" of a path made of M/L/Z commands.
+std::vector<std::pair<double, double>> Vertices(const std::string& d) {
+  std::vector<std::pair<double, double>> v;
+  const std::regex re("[ML]([-0-9.]+) ([-0-9.]+)");
+  for (auto it = std::sregex_iterator(d.begin(), d.end(), re); it != std::sregex_iterator(); ++it)
+    v.emplace_back(std::stod((*it)[1].str()), std::stod((*it)[2].str()));
+  return v;
+}
+
+TEST(Figure, BandAlongYFillsBetweenTwoCurvesOfX) {
+  // A depth profile: depth down the y axis, a band 1..2 wide in x around a line at 1.5.
+  Figure f("depthband", "alpha(z)");
+  f.y() = Axis{"Depth", "m"};
+  f.y().reversed = true;
+  std::vector<double> z, left, right, mid;
+  for (int i = 0; i <= 10; ++i) {
+    z.push_back(100.0 * i);
+    left.push_back(1.0);
+    right.push_back(2.0);
+    mid.push_back(1.5);
+  }
+  f.AddBandAlongY("80 % band", z, left, right);
+  f.AddLine(Series{"alpha", mid, z, {}, {}, {}});
+  const std::string svg = f.ToSvg();
+  const auto band = Vertices(PathData(Group(svg, "pf-band", "80 % band")));
+  const auto line = Vertices(PathData(Group(svg, "pf-line", "alpha")));
+  ASSERT_EQ(band.size(), 22u);  // 11 right-edge then 11 left-edge vertices
+  ASSERT_EQ(line.size(), 11u);
+  const double x_right = band.front().first, x_left = band.back().first;
+  EXPECT_LT(x_left, line.front().first);  // the line runs inside the band
+  EXPECT_GT(x_right, line.front().first);
+  EXPECT_NEAR(line.front().first - x_left, x_right - line.front().first, 0.02);  // and in its middle
+  for (std::size_t i = 0; i < 11; ++i) {
+    EXPECT_EQ(band[i].first, x_right);
+    EXPECT_EQ(band[21 - i].first, x_left);
+    EXPECT_EQ(band[i].second, line[i].second);       // the same depth pixel as the line
+    EXPECT_EQ(band[21 - i].second, line[i].second);
+  }
+  EXPECT_LT(line.front().second, line.back().second);  // depth increases downward
+}
+
+TEST(Figure, BandAlongYSetsTheXRangeAndSplitsAtNan) {
+  Figure f("depthband2", "k(z)");
+  f.AddBandAlongY("b", {0, 1, 2, 3, 4}, {10, 10, kNaN, 10, 10}, {20, 20, 20, 20, 20});
+  EXPECT_TRUE(f.HasData());
+  const std::string svg = f.ToSvg();
+  const std::string d = PathData(Group(svg, "pf-band", "b"));
+  EXPECT_EQ(Count(d, "M"), 2u) << d;
+  EXPECT_EQ(Count(d, "Z"), 2u) << d;
+  // The x axis covers the band's edges though no line or point is drawn.
+  EXPECT_NE(svg.find("x axis: x, 10 to 20"), std::string::npos) << svg.substr(0, 600);
+  EXPECT_THROW(f.AddBandAlongY("c", {1, 2}, {1, 2}, {1}), std::invalid_argument);
+}
+
 TEST(Figure, LegendEntriesEqualSeriesNamesInOrder) {
   const Figure f = RichFigure();
   const std::vector<std::string> expected = {"95% band", "fit <exp>", "lab 'A'", "extrapolated"};

@@ -39,7 +39,7 @@ void Figure::Add(Kind kind, Series s) {
   CheckSameLength(s.name, "y", s.x.size(), s.y.size());
   if (!s.y_err.empty()) CheckSameLength(s.name, "y_err", s.x.size(), s.y_err.size());
   if (!s.x_err.empty()) CheckSameLength(s.name, "x_err", s.x.size(), s.x_err.size());
-  layers_.push_back(Layer{kind, std::move(s), {}, 0});
+  layers_.push_back(Layer{kind, std::move(s), {}, 0, false});
 }
 
 void Figure::AddLine(Series s) { Add(Kind::kLine, std::move(s)); }
@@ -57,15 +57,23 @@ void Figure::AddBand(std::string name, std::vector<double> x, std::vector<double
   CheckSameLength(name, "lower", x.size(), lower.size());
   CheckSameLength(name, "upper", x.size(), upper.size());
   Series s{std::move(name), std::move(x), std::move(lower), {}, {}, style};
-  layers_.push_back(Layer{Kind::kBand, std::move(s), std::move(upper), 0});
+  layers_.push_back(Layer{Kind::kBand, std::move(s), std::move(upper), 0, false});
+}
+
+void Figure::AddBandAlongY(std::string name, std::vector<double> y, std::vector<double> left,
+                           std::vector<double> right, Style style) {
+  CheckSameLength(name, "left", y.size(), left.size());
+  CheckSameLength(name, "right", y.size(), right.size());
+  Series s{std::move(name), std::move(left), std::move(y), {}, {}, style};
+  layers_.push_back(Layer{Kind::kBand, std::move(s), std::move(right), 0, true});
 }
 
 void Figure::AddHorizontalLine(double y, std::string label, Style style) {
-  layers_.push_back(Layer{Kind::kHLine, Series{std::move(label), {}, {}, {}, {}, style}, {}, y});
+  layers_.push_back(Layer{Kind::kHLine, Series{std::move(label), {}, {}, {}, {}, style}, {}, y, false});
 }
 
 void Figure::AddVerticalLine(double x, std::string label, Style style) {
-  layers_.push_back(Layer{Kind::kVLine, Series{std::move(label), {}, {}, {}, {}, style}, {}, x});
+  layers_.push_back(Layer{Kind::kVLine, Series{std::move(label), {}, {}, {}, {}, style}, {}, x, false});
 }
 
 void Figure::AddNote(std::string text) { notes_.push_back(std::move(text)); }
@@ -85,7 +93,9 @@ bool Figure::HasData() const {
       case Kind::kHLine:
       case Kind::kVLine: break;
       case Kind::kBand:
-        if (AnyFinitePair(l.series.x, l.series.y) || AnyFinitePair(l.series.x, l.upper)) return true;
+        if (l.along_y ? AnyFinitePair(l.series.x, l.series.y) || AnyFinitePair(l.upper, l.series.y)
+                      : AnyFinitePair(l.series.x, l.series.y) || AnyFinitePair(l.series.x, l.upper))
+          return true;
         break;
       default:
         if (AnyFinitePair(l.series.x, l.series.y)) return true;

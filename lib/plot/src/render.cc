@@ -134,6 +134,15 @@ void Extent(const std::vector<Layer>& layers, const Axis& ax, const Axis& ay, Ra
       if (ax.scale == Scale::kLinear || l.value > 0) rx.Add(l.value, ax.scale);
       continue;
     }
+    if (l.kind == Kind::kBand && l.along_y) {
+      for (std::size_t i = 0; i < s.y.size(); ++i) {
+        if (!std::isfinite(s.y[i]) || !(std::isfinite(s.x[i]) || std::isfinite(l.upper[i]))) continue;
+        ry.Add(s.y[i], ay.scale);
+        rx.Add(s.x[i], ax.scale);
+        rx.Add(l.upper[i], ax.scale);
+      }
+      continue;
+    }
     for (std::size_t i = 0; i < s.x.size(); ++i) {
       const bool has_y = l.kind == Kind::kBand ? std::isfinite(s.y[i]) || std::isfinite(l.upper[i]) : std::isfinite(s.y[i]);
       if (!std::isfinite(s.x[i]) || !has_y) continue;
@@ -392,13 +401,21 @@ std::string Figure::ToSvg() const {
                    "\" stroke=\"none\" d=\"";
           // One closed polygon per run of points where x, lower and upper are all usable.
           std::size_t i = 0;
+          // Along y: x holds the left edge, upper the right edge, y the positions.
+          auto usable = [&](std::size_t m) {
+            return l.along_y ? sy.Valid(s.y[m]) && sx.Valid(s.x[m]) && sx.Valid(l.upper[m])
+                             : ok(m, s.y) && ok(m, l.upper);
+          };
           while (i < n) {
-            while (i < n && !(ok(i, s.y) && ok(i, l.upper))) ++i;
+            while (i < n && !usable(i)) ++i;
             std::size_t j = i;
-            while (j < n && ok(j, s.y) && ok(j, l.upper)) ++j;
+            while (j < n && usable(j)) ++j;
             if (j > i) {
-              for (std::size_t m = i; m < j; ++m) w << (m == i ? "M" : "L") + N(sx(s.x[m])) + ' ' + N(sy(l.upper[m]));
-              for (std::size_t m = j; m-- > i;) w << "L" + N(sx(s.x[m])) + ' ' + N(sy(s.y[m]));
+              for (std::size_t m = i; m < j; ++m)
+                w << (m == i ? "M" : "L") +
+                         (l.along_y ? N(sx(l.upper[m])) + ' ' + N(sy(s.y[m])) : N(sx(s.x[m])) + ' ' + N(sy(l.upper[m])));
+              for (std::size_t m = j; m-- > i;)
+                w << "L" + (l.along_y ? N(sx(s.x[m])) + ' ' + N(sy(s.y[m])) : N(sx(s.x[m])) + ' ' + N(sy(s.y[m])));
               w << "Z";
             }
             i = j;

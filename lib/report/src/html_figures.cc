@@ -331,14 +331,9 @@ std::string Draw(const FigureData& f) {
     if (!f.x_is_value) {
       fig.AddBand(s.label, s.x, s.lower, s.upper, StyleOf(s));
     } else {
-      // The band runs along the vertical (depth) axis: plot::Figure fills
-      // between two curves of x only, so its edges are drawn as thin dashed
-      // lines at each depth instead.
-      plot::Style st = StyleOf(s);
-      st.dash = plot::Dash::kDotted;
-      st.line_width = 1.5;
-      fig.AddLine({"", s.lower, s.x, {}, {}, st});
-      fig.AddLine({"band edges", s.upper, s.x, {}, {}, st});
+      // The band runs along the vertical (depth) axis: x = depth here, the
+      // edges are values.
+      fig.AddBandAlongY(s.label, s.x, s.lower, s.upper, StyleOf(s));
     }
   }
   for (const Series& s : f.series) {
@@ -465,6 +460,7 @@ std::vector<SampleFigure> DrawDepthFigures(const depth::DepthTable& table, bool 
                " rows integrates the user's fill trend above the log top (log-fill), and of " + std::to_string(gap_rows) +
                " rows bridged or screened log samples (log-gap).";
   const std::string level = LevelText(table.spec.band_level);
+  const std::string band_label = HtmlNum("%.0f", 100 * table.spec.band_level) + " % band";  // SVG text, no entities
   std::vector<SampleFigure> out;
   auto fig = [&](const char* name, const std::string& title, const std::string& x_label) {
     FigureData f;
@@ -490,13 +486,13 @@ std::vector<SampleFigure> DrawDepthFigures(const depth::DepthTable& table, bool 
                        const std::vector<double>& flag_z, const std::vector<double>& flag_v, const std::string& what) {
     FigureData f = fig(name, title, x_label);
     // Bands against depth: lower/upper are x values at each depth.
-    f.series.push_back({SeriesKind::kBand, "", 0, false, z, {}, lo, hi, {}});
+    f.series.push_back({SeriesKind::kBand, band_label, 0, false, z, {}, lo, hi, {}});
     f.series.push_back({SeriesKind::kLine, what, 0, false, v, z, {}, {}, {}});
     if (!flag_z.empty())
       f.series.push_back({SeriesKind::kMarkers, "flagged (extrapolated, bounds...)", 0, true, flag_v, flag_z, {}, {}, {}});
     out.push_back({name, Draw(f),
                    "<strong>" + Esc(table.spec.name) + ": " + what + " against depth</strong> (increasing downward) "
-                   "with the edges of its " + level + " delta-method band (dotted; K_s variance included, pressure treated as "
+                   "with its " + level + " delta-method band (shaded; K_s variance included, pressure treated as "
                    "exact). " +
                    (flag_z.empty() ? std::string("No row is flagged.")
                                    : "Markers: rows flagged for extrapolation beyond the lab pressures, alpha outside [phi, 1], "

@@ -120,6 +120,11 @@ class Figure {
   /// the band.
   void AddBand(std::string name, std::vector<double> x, std::vector<double> lower,
                std::vector<double> upper, Style style = {});
+  /// The same region for vertical profiles (depth on y): filled between the
+  /// curves left(y) and right(y), point i at (left[i], y[i]) and
+  /// (right[i], y[i]). NaN in any of the three splits the band.
+  void AddBandAlongY(std::string name, std::vector<double> y, std::vector<double> left,
+                     std::vector<double> right, Style style = {});
   /// Reference lines across the whole plot area, labelled at their end.
   /// Default style: black, dashed, 1.5 px.
   void AddHorizontalLine(double y, std::string label, Style style = {});
@@ -146,6 +151,9 @@ class Figure {
     Series series;             ///< bands: y = lower, y_err unused, upper in `upper`
     std::vector<double> upper;
     double value = 0;          ///< reference lines
+    /// Bands only: the band runs along y (AddBandAlongY): series.x = left,
+    /// series.y = the y values, upper = right.
+    bool along_y = false;
   };
   const std::vector<Layer>& layers() const { return layers_; }
   const std::vector<std::string>& notes() const { return notes_; }
