@@ -20,6 +20,7 @@
 #include <filesystem>
 #include <iostream>
 #include <string>
+#include <string_view>
 #include <vector>
 
 #include "porofit/core/error.h"
@@ -162,6 +163,9 @@ int CmdFit(const std::vector<std::string>& args, const std::string& command_line
   if (!quiet) {
     meter.emplace(std::cerr, ::isatty(STDERR_FILENO) != 0, study.samples.size());
     stream.progress = [&](size_t done, size_t) { meter->Update(done); };
+    stream.sample_progress = [&](size_t i, std::string_view stage, size_t done, size_t total) {
+      meter->Inner(i, study.samples[i].sample.id + ": " + std::string(stage), done, total);
+    };
   }
   const porofit::StreamReportResult result = porofit::RunAndWriteReportFolder(study, ro, out_dir, fo, so, stream);
   if (meter) meter->Finish();

@@ -6,6 +6,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <mutex>
 #include <random>
 
 #include "porofit/core/error.h"
@@ -361,6 +362,31 @@ TEST(BootstrapBands, AreReproducibleAndIdenticalForOneAndTwoThreads) {
       EXPECT_LT(w, 2.0 * wd) << " P#" << i;
     }
   }
+}
+
+TEST(BootstrapBands, ReportProgressOncePerRefitWithoutChangingTheBands) {
+  std::mt19937_64 rng(37);
+  const Sample s = Simulate("exp-modulus", {20.0, 8.0, 10.0}, 12, 0.02, rng);
+  ASSERT_TRUE(s.fit.IsUsable());
+  BandRequest r = RequestFor(s, 37e9, 1e9, {5.0, 30.0});
+  r.options.bootstrap_replicates = 120;
+  r.options.threads = 2;
+  const BootstrapResult quiet = ComputeBootstrapBands(r);
+  std::mutex mu;
+  std::vector<size_t> seen;
+  r.bootstrap_progress = [&](size_t done, size_t total) {
+    std::lock_guard<std::mutex> lock(mu);
+    EXPECT_EQ(total, 120u);
+    seen.push_back(done);
+  };
+  const BootstrapResult heard = ComputeBootstrapBands(r);
+  ASSERT_TRUE(heard.computed) << heard.message;
+  EXPECT_EQ(heard.k.lower, quiet.k.lower);
+  EXPECT_EQ(heard.alpha.upper, quiet.alpha.upper);
+  // Each count 1..120 exactly once (two threads may report out of order).
+  ASSERT_EQ(seen.size(), 120u);
+  std::sort(seen.begin(), seen.end());
+  for (size_t i = 0; i < seen.size(); ++i) EXPECT_EQ(seen[i], i + 1);
 }
 
 TEST(BootstrapBands, CountFailedRefitsAndExcludeThem) {

@@ -4,9 +4,17 @@
 
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <cmath>
+#include <limits>
+#include <map>
+#include <mutex>
 #include <random>
 #include <stdexcept>
+#include <string>
+#include <string_view>
+#include <utility>
+#include <vector>
 
 namespace porofit {
 namespace {
@@ -89,6 +97,62 @@ TEST(RunStudyStreaming, HandsEverySampleInOrderWithTheResultsOfRunStudy) {
       EXPECT_EQ(meta.threads, threads);
     }
   }
+}
+
+TEST(RunStudyStreaming, ReportsBootstrapProgressInsideEachSampleWithoutChangingIt) {
+  Study st = SyntheticStudy(6);
+  for (StudySample& s : st.samples) {
+    s.grain.given = true;
+    s.grain.value.k_s = 37e9;
+    s.grain.value.sigma_k_s = 1e9;
+    s.grain.value.mu_s = std::numeric_limits<double>::quiet_NaN();
+    s.bands.options.monte_carlo = false;
+    s.bands.options.bootstrap = true;
+    s.bands.options.bootstrap_replicates = 100;  // the smallest allowed
+  }
+  RunOptions o;
+  o.threads = 2;
+  std::vector<SampleRun> quiet;
+  RunStudyStreaming(st, o, [&](size_t, SampleRun&& r) { quiet.push_back(std::move(r)); });
+  std::mutex mu;
+  std::map<std::pair<size_t, std::string>, size_t> last;  // (sample, stage) -> highest count heard
+  StreamOptions so;
+  so.sample_progress = [&](size_t i, std::string_view stage, size_t done, size_t total) {
+    std::lock_guard<std::mutex> lock(mu);
+    EXPECT_EQ(total, 100u);
+    size_t& l = last[{i, std::string(stage)}];
+    l = std::max(l, done);
+  };
+  size_t n = 0;
+  RunStudyStreaming(
+      st, o,
+      [&](size_t i, SampleRun&& r) {
+        ++n;
+        ASSERT_EQ(r.bands.size(), quiet[i].bands.size());
+        for (size_t k = 0; k < r.bands.size(); ++k) {
+          EXPECT_EQ(r.bands[k].bootstrap.computed, quiet[i].bands[k].bootstrap.computed);
+          EXPECT_EQ(r.bands[k].bootstrap.alpha.lower, quiet[i].bands[k].bootstrap.alpha.lower);
+        }
+      },
+      so);
+  EXPECT_EQ(n, st.samples.size());
+  // Every sample whose fit converged ran its bootstrap to the end, per model.
+  size_t bootstraps = 0;
+  for (size_t i = 0; i < st.samples.size(); ++i) {
+    for (size_t k = 0; k < st.samples[i].models.size(); ++k) {
+      const std::string stage = "bootstrap " + st.samples[i].models[k].model_id;
+      const bool ran = quiet[i].bands[k].bootstrap.replicates > 0;
+      const auto it = last.find({i, stage});
+      if (ran) {
+        ++bootstraps;
+        ASSERT_NE(it, last.end()) << i << " " << stage;
+        EXPECT_EQ(it->second, 100u);
+      } else {
+        EXPECT_EQ(it, last.end()) << i << " " << stage;
+      }
+    }
+  }
+  EXPECT_GE(bootstraps, 8u);  // 6 samples x 2 models, one sample with too few points
 }
 
 TEST(RunStudyStreaming, SinkExceptionStopsTheRunAndIsRethrown) {

@@ -1,4 +1,5 @@
 // Residual and wild bootstrap with refits through porofit::Fit.
+#include <atomic>
 #include <memory>
 
 #include "common.h"
@@ -60,6 +61,11 @@ BootstrapResult ComputeBootstrapBands(const BandRequest& r) {
   std::vector<char> use(static_cast<size_t>(B), 0);
   std::vector<char> why(static_cast<size_t>(B), 0);  // 1 status, 2 curve
 
+  std::atomic<size_t> finished{0};
+  auto report = [&] {
+    const size_t k = finished.fetch_add(1) + 1;
+    if (r.bootstrap_progress) r.bootstrap_progress(k, static_cast<size_t>(B));
+  };
   detail::ParallelFor(B, r.options.threads, [&](int b) {
     Stream rng(r.options.seed, detail::kTagBootstrap, static_cast<std::uint64_t>(b));
     FitRequest req = base;
@@ -72,16 +78,19 @@ BootstrapResult ComputeBootstrapBands(const BandRequest& r) {
     const FitResult fr = Fit(req);
     if (fr.status != FitStatus::kConverged) {
       why[row] = 1;
+      report();
       return;
     }
     std::vector<double> th(m.parameters.size());
     for (size_t j = 0; j < th.size(); ++j) th[j] = fr.parameters[j].estimate / m.parameters[j].si_factor;
     if (!detail::CurveAt(m, th.data(), r.grid.pressure, kd.get() + row * G) || !(ks > 0)) {
       why[row] = 2;
+      report();
       return;
     }
     ks_of[row] = ks;
     use[row] = 1;
+    report();
   });
 
   out.replicates = B;

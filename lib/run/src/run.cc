@@ -123,7 +123,7 @@ bands::BandResult NotComputed(std::string message) {
 }  // namespace
 
 bands::BandResult RunBands(const StudySample& sample, const ModelChoice& choice, const FitResult& fit,
-                           const ModelRegistry& registry) {
+                           const ModelRegistry& registry, const SampleProgress& progress) {
   if (!sample.grain.given) return NotComputed("no grain modulus");
   if (fit.status != FitStatus::kConverged)
     return NotComputed("fit status " + std::string(ToString(fit.status)) + ": no bands");
@@ -143,6 +143,10 @@ bands::BandResult RunBands(const StudySample& sample, const ModelChoice& choice,
   if (sample.fluid) br.fluid_modulus = sample.fluid->k_f;
   br.options = sample.bands.options;
   br.options.threads = 1;  // parallel over samples instead; results do not depend on it
+  if (progress) {
+    const std::string stage = "bootstrap " + choice.model_id;
+    br.bootstrap_progress = [&progress, stage](size_t done, size_t total) { progress(stage, done, total); };
+  }
   bands::BandResult out;
   try {
     br.grid = bands::MakeGrid(sample.bands.grid, request.data.x);
@@ -276,12 +280,13 @@ std::vector<VtiAlphaPoint> RunVti(const StudySample& s, const ModelRegistry& reg
   return out;
 }
 
-SampleRun RunSample(const StudySample& s, const ModelRegistry& registry, const compare::ComparisonOptions& comparison) {
+SampleRun RunSample(const StudySample& s, const ModelRegistry& registry, const compare::ComparisonOptions& comparison,
+                    const SampleProgress& progress) {
   SampleRun out;
   out.fits.reserve(s.models.size());
   for (const ModelChoice& c : s.models) out.fits.push_back(RunOne(s, c, registry));
   if (s.grain.given) {
-    for (size_t k = 0; k < out.fits.size(); ++k) out.bands.push_back(RunBands(s, s.models[k], out.fits[k], registry));
+    for (size_t k = 0; k < out.fits.size(); ++k) out.bands.push_back(RunBands(s, s.models[k], out.fits[k], registry, progress));
   }
   out.vti = RunVti(s, registry, out.vti_fits);
   out.strain_moduli = RunStrainModuli(s, out.fits, registry);

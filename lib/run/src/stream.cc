@@ -37,10 +37,14 @@ void RunStudyStreaming(const Study& study, const RunOptions& options, const Samp
   auto done = [&](size_t i) {
     if (stream.progress) stream.progress(i + 1, n);
   };
+  auto inner = [&](size_t i) -> SampleProgress {
+    if (!stream.sample_progress) return {};
+    return [&stream, i](std::string_view stage, size_t d, size_t t) { stream.sample_progress(i, stage, d, t); };
+  };
 
   if (workers <= 1) {
     for (size_t i = 0; i < n; ++i) {
-      SampleRun r = RunSample(study.samples[i], registry, study.comparison);
+      SampleRun r = RunSample(study.samples[i], registry, study.comparison, inner(i));
       if (stream.prepare) stream.prepare(i, r);
       sink(i, std::move(r));
       done(i);
@@ -68,7 +72,7 @@ void RunStudyStreaming(const Study& study, const RunOptions& options, const Samp
         }
         std::optional<SampleRun> r;
         try {
-          r = RunSample(study.samples[i], registry, study.comparison);
+          r = RunSample(study.samples[i], registry, study.comparison, inner(i));
           if (stream.prepare) stream.prepare(i, *r);
         } catch (...) {
           std::lock_guard<std::mutex> lock(mu);

@@ -26,6 +26,8 @@
 // unusable fit (not converged, no covariance) is a result with computed =
 // false and a message, never an exception. Filtered Monte Carlo draws and
 // failed bootstrap refits are counted, never dropped silently.
+#include <cstddef>
+#include <functional>
 #include <limits>
 #include <string>
 #include <vector>
@@ -65,6 +67,12 @@ struct BandRequest {
 
   PressureGrid grid;
   BandOptions options;
+  /// Progress of the bootstrap, which can take minutes on one sample: called
+  /// after each refit with (refits finished, replicates), finished counting
+  /// failed refits too. With options.threads > 1 it is called from several
+  /// threads at once and must be thread-safe. It never changes a result.
+  /// Empty: not called.
+  std::function<void(size_t done, size_t total)> bootstrap_progress;
 };
 
 /// A curve with its band at each grid point. For the delta method `estimate`

@@ -10,9 +10,12 @@
 // results are placed by index, so the output is identical for any thread count.
 // Failure: a fit that fails is a FitResult status (with message), never an
 // exception; RunStudy() itself throws only std::bad_alloc-like system errors.
+#include <cstddef>
+#include <functional>
 #include <limits>
 #include <memory>
 #include <string>
+#include <string_view>
 #include <vector>
 
 #include "porofit/bands/bands.h"
@@ -201,12 +204,20 @@ std::vector<StrainModulusPoint> RunStrainModuli(const StudySample& sample, const
 /// Fits one model choice to one sample; never throws for a failing fit.
 FitResult RunOne(const StudySample& sample, const ModelChoice& choice, const ModelRegistry& registry);
 
+/// Progress inside one sample while it runs, for the long steps (today the
+/// bootstrap refits): `stage` names the step ("bootstrap exp-modulus"), and
+/// done of total counts its units. Called on the thread computing the sample,
+/// so it must be thread-safe when samples run in parallel. It never changes a
+/// result. An empty function is not called.
+using SampleProgress = std::function<void(std::string_view stage, size_t done, size_t total)>;
+
 /// Computes the alpha bands of one fit (the sample must have a grain modulus).
 /// Never throws for bad data: problems become computed = false with a message.
 /// With a fluid modulus, the K_f variance is added to the delta-method bands
 /// of M, K_u and B (first order, same quantile; see docs/outputs.md).
+/// `progress` hears the bootstrap refits as stage "bootstrap <model id>".
 bands::BandResult RunBands(const StudySample& sample, const ModelChoice& choice, const FitResult& fit,
-                           const ModelRegistry& registry);
+                           const ModelRegistry& registry, const SampleProgress& progress = {});
 
 /// The alpha_h, alpha_v points of a sample's VTI table (see SampleRun::vti),
 /// and in `fits` its stiffness fits. Never throws for a failing fit: a fit
@@ -223,7 +234,7 @@ JointRun RunJoint(const Study& study, const JointFitChoice& choice, const ModelR
 /// VTI points. Never throws for a failing fit. The streaming runner
 /// (porofit/run/stream.h) and RunStudy() both call it.
 SampleRun RunSample(const StudySample& sample, const ModelRegistry& registry,
-                    const compare::ComparisonOptions& comparison = {});
+                    const compare::ComparisonOptions& comparison = {}, const SampleProgress& progress = {});
 
 /// Runs the whole study. Requires options.Validate().empty() (checked: a bad
 /// option is a programmer error and aborts).

@@ -14,6 +14,7 @@
 // RunStudyStreaming() after they have joined.
 #include <cstddef>
 #include <functional>
+#include <string_view>
 
 #include "porofit/run/run.h"
 
@@ -27,6 +28,10 @@ struct StreamOptions {
   /// Called on the calling thread after the sink took sample `done - 1`:
   /// (samples done, total). May be empty.
   std::function<void(size_t done, size_t total)> progress;
+  /// Progress inside sample `index` while it is computed (see SampleProgress
+  /// in run.h): called on the worker thread computing it, so several samples
+  /// may report at once; must be thread-safe. May be empty.
+  std::function<void(size_t index, std::string_view stage, size_t done, size_t total)> sample_progress;
   /// Called on the worker thread that computed sample `index` (the calling
   /// thread with one thread), before the sample waits for its turn: lets the
   /// sink's heavy work, such as formatting the sample's output rows, run in
