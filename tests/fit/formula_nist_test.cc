@@ -38,7 +38,9 @@ struct FormulaCase {
   std::vector<std::string> positive_parameters = {};  // declared with lower bound 0
 };
 
-class NistFormula : public ::testing::TestWithParam<std::tuple<int, int>> {};
+// (file index, start 1 or 2, solver): every file on the Ceres path (the default)
+// and on the compact solver (FitOptions::solver), the same certified gates.
+class NistFormula : public ::testing::TestWithParam<std::tuple<int, int, SolverChoice>> {};
 
 const std::vector<FormulaCase>& Cases() {
   static const std::vector<FormulaCase> cases = {
@@ -84,7 +86,7 @@ TEST(NistFormulaCases, CoverEveryFileOfTheReferenceFolder) {
 }
 
 TEST_P(NistFormula, MatchesCertifiedValuesFromStart) {
-  const auto [index, start] = GetParam();
+  const auto [index, start, solver] = GetParam();
   const FormulaCase& c = Cases()[static_cast<size_t>(index)];
   SCOPED_TRACE(std::string("NIST StRD ") + c.file + ", certified values");  // the source of every check below
   testing::NistProblem p =
@@ -130,6 +132,7 @@ TEST_P(NistFormula, MatchesCertifiedValuesFromStart) {
   req.model = &spec;
   req.extra_starts = {s};
   req.only_extra_starts = true;
+  req.options.solver = solver;
   const FitResult r = Fit(req);
   ASSERT_EQ(r.status, FitStatus::kConverged) << r.BriefReport();
   double lre_est = std::numeric_limits<double>::infinity(), lre_se = lre_est;
@@ -138,18 +141,20 @@ TEST_P(NistFormula, MatchesCertifiedValuesFromStart) {
     lre_se = std::min(lre_se, Lre(r.parameters[k].std_error, p.certified_sd[k]));
   }
   const double lre_rss = Lre(r.ssr, p.rss);
-  std::printf("[nist-formula] %-9s start %d  LRE estimates %5.2f  std errors %5.2f  RSS %5.2f\n", c.file,
-              start, lre_est, lre_se, lre_rss);
+  std::printf("[nist-formula] %-9s start %d %-7s LRE estimates %5.2f  std errors %5.2f  RSS %5.2f\n", c.file,
+              start, std::string(ToString(solver)).c_str(), lre_est, lre_se, lre_rss);
   EXPECT_GE(lre_est, 6.0) << r.BriefReport();
   EXPECT_GE(lre_se, 4.0) << r.BriefReport();
   EXPECT_GE(lre_rss, 6.0) << r.BriefReport();
 }
 
 INSTANTIATE_TEST_SUITE_P(AllFiles, NistFormula,
-                         ::testing::Combine(::testing::Range(0, 17), ::testing::Values(1, 2)),
-                         [](const ::testing::TestParamInfo<std::tuple<int, int>>& param_info) {
+                         ::testing::Combine(::testing::Range(0, 17), ::testing::Values(1, 2),
+                                            ::testing::Values(SolverChoice::kCeres, SolverChoice::kCompact)),
+                         [](const ::testing::TestParamInfo<std::tuple<int, int, SolverChoice>>& param_info) {
                            return std::string(Cases()[static_cast<size_t>(std::get<0>(param_info.param))].file) +
-                                  "_Start" + std::to_string(std::get<1>(param_info.param));
+                                  "_Start" + std::to_string(std::get<1>(param_info.param)) +
+                                  (std::get<2>(param_info.param) == SolverChoice::kCeres ? "_Ceres" : "_Compact");
                          });
 
 }  // namespace
