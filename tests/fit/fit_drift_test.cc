@@ -67,6 +67,26 @@ TEST(PowerOffsetDrift, SaturatingDataStopsAtTheLimitAndSaysSo) {
   }
 }
 
+TEST(PowerOffsetDrift, StartsAfterTwoAtTheSameLimitAreSkippedUnlessEveryStartIsAsked) {
+  const ModelSpec& m = Model("power-offset");
+  for (const FitData& d : BatchSamples(4)) {
+    FitRequest skip = Request(m, d, SolverChoice::kAuto);
+    FitRequest every = skip;
+    every.options.skip_starts_at_same_limit = false;
+    const FitResult a = Fit(skip), b = Fit(every);
+    ASSERT_EQ(a.status, FitStatus::kAtLimit) << a.BriefReport();
+    ASSERT_EQ(b.status, FitStatus::kAtLimit) << b.BriefReport();
+    EXPECT_EQ(a.starts_tried, 2);
+    EXPECT_EQ(b.starts_tried, 8);
+    EXPECT_EQ(a.starts_converged, 0);
+    EXPECT_EQ(b.starts_converged, 0) << "every start ends at the limit, so skipping loses no converged start";
+    EXPECT_NE(a.message.find("the other 6 start(s) were skipped"), std::string::npos) << a.message;
+    EXPECT_EQ(b.message.find("skipped"), std::string::npos) << b.message;
+    EXPECT_TRUE(a.parameters[2].at_lower);
+    EXPECT_TRUE(b.parameters[2].at_lower);
+  }
+}
+
 TEST(PowerOffsetDrift, WellPosedPowerOffsetStillConvergesToTheSameEstimates) {
   const ModelSpec& m = Model("power-offset");
   const double theta[3] = {9.0, 0.25, 5.0};  // invented truth (GPa, 1, MPa)

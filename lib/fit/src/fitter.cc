@@ -597,7 +597,17 @@ FitResult Fit(const FitRequest& req) {
 
   SolverRun best;
   std::vector<double> start_res, start_jac;
-  for (const std::vector<double>& st : starts) {
+  // Starts that ended at the same limit (drift watch), while none converged:
+  // after two, the rest are skipped (FitOptions::multistart says why).
+  int same_limit = 0, limit_coordinate = -1;
+  bool limit_downwards = false;
+  size_t skipped = 0;
+  for (size_t si = 0; si < starts.size(); ++si) {
+    const std::vector<double>& st = starts[si];
+    if (opt.skip_starts_at_same_limit && same_limit >= 2 && r.starts_converged == 0) {
+      skipped = starts.size() - si;
+      break;
+    }
     SolverRun run;
     run.start = st;
     r.starts_tried += 1;
@@ -666,12 +676,21 @@ FitResult Fit(const FitRequest& req) {
     }
     run.u.assign(u.begin(), u.begin() + s.nf);
     if (run.end == RunEnd::kConverged) r.starts_converged += 1;
+    if (run.end == RunEnd::kStalled) {
+      if (same_limit == 0) {
+        limit_coordinate = run.limit_coordinate;
+        limit_downwards = run.limit_downwards;
+      }
+      if (run.limit_coordinate == limit_coordinate && run.limit_downwards == limit_downwards) ++same_limit;
+    }
     if (IsBetterRun(run, best)) best = std::move(run);
   }
 
   r.status = StatusOf(best.end);
   r.iterations = best.iterations;
   r.message = best.message;
+  if (skipped > 0)
+    r.message += "; the other " + std::to_string(skipped) + " start(s) were skipped: two starts ended at this limit";
   if (!(Usable(best.end) && std::isfinite(best.cost))) {
     r.status = FitStatus::kNumericalFailure;
     if (r.message.empty()) r.message = "no start gave a finite cost";
