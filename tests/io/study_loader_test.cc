@@ -283,8 +283,12 @@ TEST(StudyLoader, ReadsEveryFitOption) {
       min_reciprocal_condition: 1e-12
       correlation_threshold: 0.9
       closure_range_factor: 5
+      solver: ceres
+      run_every_start: true
 )";
   const FitOptions o = ParseStudy(text, "small.yaml", ModelRegistry::Builtin()).samples[0].options;
+  EXPECT_EQ(o.solver, SolverChoice::kCeres);
+  EXPECT_FALSE(o.skip_starts_at_same_limit);
   EXPECT_EQ(o.loss, RobustLoss::kCauchy);
   EXPECT_DOUBLE_EQ(o.loss_scale, 3);
   EXPECT_EQ(o.multistart, 2);
@@ -300,6 +304,22 @@ TEST(StudyLoader, ReadsEveryFitOption) {
   EXPECT_DOUBLE_EQ(o.correlation_threshold, 0.9);
   EXPECT_DOUBLE_EQ(o.closure_range_factor, 5);
   EXPECT_TRUE(o.scale_covariance);  // unweighted sample
+}
+
+TEST(StudyLoader, SolverDefaultsToAutoAndAnUnknownSolverIsRejectedAtItsValue) {
+  const FitOptions d = ParseStudy(kSmall, "small.yaml", ModelRegistry::Builtin()).samples[0].options;
+  EXPECT_EQ(d.solver, SolverChoice::kAuto);
+  EXPECT_TRUE(d.skip_starts_at_same_limit);
+  std::string text = kSmall;
+  text += "    fit: {solver: lapack}\n";
+  try {
+    ParseStudy(text, "small.yaml", ModelRegistry::Builtin());
+    FAIL() << "no error";
+  } catch (const InputError& e) {
+    EXPECT_NE(e.message().find("is not one of"), std::string::npos) << e.message();
+    EXPECT_NE(e.message().find("compact"), std::string::npos) << e.message();
+    EXPECT_NE(e.location().ToString().find("small.yaml:"), std::string::npos);
+  }
 }
 
 TEST(StudyLoader, UnknownFitOptionSuggestsTheNearestKey) {

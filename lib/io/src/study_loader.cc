@@ -132,7 +132,8 @@ void ReadFitOptions(const Field& field, const std::string& file, const std::stri
         ptol = m.Get("parameter_tolerance"), cov = m.Get("covariance"),
         scale = m.Get("scale_covariance"), backend = m.Get("covariance_backend"),
         rcond = m.Get("min_reciprocal_condition"),
-        corr = m.Get("correlation_threshold"), closure = m.Get("closure_range_factor");
+        corr = m.Get("correlation_threshold"), closure = m.Get("closure_range_factor"),
+        solver = m.Get("solver"), every_start = m.Get("run_every_start");
   m.Finish();
   FitOptions& o = out.options;
   auto note = [&](const Field& f) { out.keys.emplace_back(f.key, f.key_at); };
@@ -168,6 +169,12 @@ void ReadFitOptions(const Field& field, const std::string& file, const std::stri
   if (rcond) note(rcond), o.min_reciprocal_condition = rcond.Number();
   if (corr) note(corr), o.correlation_threshold = corr.Number();
   if (closure) note(closure), o.closure_range_factor = closure.Number();
+  if (solver) {
+    note(solver);
+    o.solver = ParseChoice<SolverChoice>(
+        solver, {{"auto", SolverChoice::kAuto}, {"ceres", SolverChoice::kCeres}, {"compact", SolverChoice::kCompact}});
+  }
+  if (every_start) note(every_start), o.skip_starts_at_same_limit = !every_start.Boolean();
 
   const std::string problem = o.Validate();
   if (!problem.empty()) {
