@@ -184,15 +184,15 @@ TEST(HtmlCli, ChromiumScreenshotIsNotBlank) {
 
 TEST(HtmlCli, ReportWithAFailedFitRendersAndShowsTheFailure) {
   RequireTools();
-  // tests/data/good/comparison.yaml: the power-offset fit of CMP-3 stops at
-  // the iteration limit (see comparison_test.cc).
+  // tests/data/good/comparison.yaml: the power-offset fit of CMP-3 runs to
+  // the P_r -> 0 limit, status at-limit (see comparison_test.cc).
   const fs::path out = FailedOutput();
   const Outcome v = Shell(std::string(kPython) + " " + Quote(kChecker) + " structure " +
                           Quote((out / "report.html").string()) + " --table parameters");
   EXPECT_EQ(v.exit_code, 0) << v.out << v.err;
   const Outcome r = Chromium("--dump-dom " + Quote("file://" + (out / "report.html").string()));
   ASSERT_EQ(r.exit_code, 0) << r.err;
-  EXPECT_NE(r.out.find("<strong>Fit failed: power-offset — max-iterations</strong>"), std::string::npos)
+  EXPECT_NE(r.out.find("<strong>Fit failed: power-offset — at-limit</strong>"), std::string::npos)
       << r.out.substr(0, 2000);
   EXPECT_NE(r.out.find("data-figure=\"CMP-3_k-fit\""), std::string::npos);  // the other models are still drawn
 }

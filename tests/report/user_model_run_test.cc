@@ -2,7 +2,13 @@
 // through RunStudy like the built-in: same fitted parameters, standard errors
 // and alpha bands (delta, Monte Carlo, bootstrap) at the same data, and the
 // report layer shows its formula. Measured: differences of 0 to 2e-16
-// relative (rounding); the bounds below are 1e-12.
+// relative (rounding); the bounds below are 1e-12. The study pins the Ceres
+// solver: on the compact solver (the default, `solver: auto`) the user model
+// still lands on the Ceres answer to rounding, but the built-in stops one
+// function-tolerance step earlier, 3.6e-10 relative away (1e-7 of a standard
+// error; docs/benchmarks.md), which is convergence noise, not a formula
+// difference. UserModelRun.OnTheDefaultSolverAgreesWithinConvergenceNoise
+// checks that path with its own, measured bound.
 #include <gtest/gtest.h>
 
 #include <algorithm>
@@ -49,7 +55,7 @@ std::string StudyText() {
          "      K_0: {unit: GPa, lower: 0, start: 8}\n"
          "      P_close: {unit: MPa, lower: 0, start: 10, transform: log}\n"
          "defaults:\n"
-         "  fit: {multistart: 1}\n"
+         "  fit: {multistart: 1, solver: ceres}\n"
          "  bands:\n"
          "    methods: [delta, monte-carlo, bootstrap]\n"
          "    monte_carlo_draws: 400\n"
@@ -117,6 +123,30 @@ TEST(UserModelRun, FitsTheSameParametersAsTheBuiltinItSpellsOut) {
   EXPECT_LE(se, 1e-12);
   EXPECT_LE(ssr, 1e-12);
   EXPECT_LE(RelDiff(fits[0].aicc, fits[1].aicc), 1e-12);
+}
+
+TEST(UserModelRun, OnTheDefaultSolverAgreesWithinConvergenceNoise) {
+  std::string text = StudyText();
+  const std::string pinned = "solver: ceres";
+  ASSERT_NE(text.find(pinned), std::string::npos);
+  text.replace(text.find(pinned), pinned.size(), "solver: auto");
+  const Study study = ParseStudy(text, "virtual/user-model-study.yaml", ModelRegistry::Builtin());
+  RunOptions o;
+  o.timestamp_utc = "2026-12-02T00:00:00Z";
+  const StudyRun run = RunStudy(study, o);
+  const auto& fits = run.samples[0].fits;
+  ASSERT_EQ(fits.size(), 2u);
+  ASSERT_EQ(fits[0].status, FitStatus::kConverged) << fits[0].BriefReport();
+  ASSERT_EQ(fits[1].status, FitStatus::kConverged) << fits[1].BriefReport();
+  const auto& pinned_fits = TheRun().samples[0].fits;  // the Ceres answers
+  double est = 0, user_vs_ceres = 0;
+  for (size_t k = 0; k < 3; ++k) {
+    est = std::max(est, RelDiff(fits[0].parameters[k].estimate, fits[1].parameters[k].estimate));
+    user_vs_ceres = std::max(user_vs_ceres, RelDiff(fits[1].parameters[k].estimate, pinned_fits[1].parameters[k].estimate));
+  }
+  std::printf("[user-model] compact solver: built-in vs formula %.2e, formula vs Ceres %.2e\n", est, user_vs_ceres);
+  EXPECT_LE(est, 1e-9);  // measured 3.6e-10
+  EXPECT_LE(RelDiff(fits[0].ssr, fits[1].ssr), 1e-12);
 }
 
 TEST(UserModelRun, AlphaBandsOfEveryMethodMatchTheBuiltin) {
