@@ -598,7 +598,7 @@ FitResult Fit(const FitRequest& req) {
   SolverRun best;
   std::vector<double> start_res, start_jac;
   // Starts that ended at the same limit (drift watch), while none converged:
-  // after two, the rest are skipped (FitOptions::multistart says why).
+  // after two, the rest are skipped (FitOptions::skip_starts_at_same_limit).
   int same_limit = 0, limit_coordinate = -1;
   bool limit_downwards = false;
   size_t skipped = 0;

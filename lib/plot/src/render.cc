@@ -399,23 +399,22 @@ std::string Figure::ToSvg() const {
           w.Attr("data-series", s.name);
           w << " clip-path=\"url(#" + clip + ")\"><path fill=\"" + k.colour + "\" fill-opacity=\"" + N(kBandOpacity) +
                    "\" stroke=\"none\" d=\"";
-          // One closed polygon per run of points where x, lower and upper are all usable.
-          std::size_t i = 0;
-          // Along y: x holds the left edge, upper the right edge, y the positions.
+          // One closed polygon per run of points where both edges are usable.
+          // The lower edge is (x, y) either way; the upper edge is (x, upper),
+          // or (upper, y) for a band along y (x = left edge, upper = right).
+          auto upper_x = [&](std::size_t m) { return l.along_y ? l.upper[m] : s.x[m]; };
+          auto upper_y = [&](std::size_t m) { return l.along_y ? s.y[m] : l.upper[m]; };
           auto usable = [&](std::size_t m) {
-            return l.along_y ? sy.Valid(s.y[m]) && sx.Valid(s.x[m]) && sx.Valid(l.upper[m])
-                             : ok(m, s.y) && ok(m, l.upper);
+            return sx.Valid(s.x[m]) && sy.Valid(s.y[m]) && sx.Valid(upper_x(m)) && sy.Valid(upper_y(m));
           };
+          std::size_t i = 0;
           while (i < n) {
             while (i < n && !usable(i)) ++i;
             std::size_t j = i;
             while (j < n && usable(j)) ++j;
             if (j > i) {
-              for (std::size_t m = i; m < j; ++m)
-                w << (m == i ? "M" : "L") +
-                         (l.along_y ? N(sx(l.upper[m])) + ' ' + N(sy(s.y[m])) : N(sx(s.x[m])) + ' ' + N(sy(l.upper[m])));
-              for (std::size_t m = j; m-- > i;)
-                w << "L" + (l.along_y ? N(sx(s.x[m])) + ' ' + N(sy(s.y[m])) : N(sx(s.x[m])) + ' ' + N(sy(s.y[m])));
+              for (std::size_t m = i; m < j; ++m) w << (m == i ? "M" : "L") + N(sx(upper_x(m))) + ' ' + N(sy(upper_y(m)));
+              for (std::size_t m = j; m-- > i;) w << "L" + N(sx(s.x[m])) + ' ' + N(sy(s.y[m]));
               w << "Z";
             }
             i = j;
