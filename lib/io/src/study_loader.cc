@@ -16,6 +16,7 @@
 #include "porofit/io/csv.h"
 #include "porofit/models/strain_form.h"
 #include "branch_settings.h"
+#include "csv_columns.h"
 #include "scalar.h"
 #include "study_joint.h"
 #include "study_depth.h"
@@ -352,7 +353,9 @@ constexpr std::array<RoleInfo, kNumRoles> kRoles = {{
 
 struct Column {
   Role role = kNumRoles;
-  std::string unit;
+  std::string header;     // the file's header name (the role name in the list form)
+  bool mapped = false;    // named by the map form of data.columns
+  std::string unit;       // empty until known, for mapped columns whose unit is in the header
   double factor = 1;      // SI per declared unit (or 0.01 for '%')
   bool relative = false;  // sigma column in '%'
   SourceLocation at;
@@ -369,6 +372,41 @@ struct RawRow {
   std::array<std::optional<Cell>, kNumRoles> cells;
 };
 
+// The role a column name (or a `columns` map key) stands for; throws at `at`.
+Role RoleByName(const std::string& name, const SourceLocation& at) {
+  std::vector<std::string> names;
+  for (const auto& r : kRoles) names.emplace_back(r.name);
+  for (int r = 0; r < kNumRoles; ++r)
+    if (name == kRoles[static_cast<size_t>(r)].name) return static_cast<Role>(r);
+  std::string msg = "unknown column " + Quote(name) + " (columns: " + Join(names) + ")";
+  const std::string near = NearestWord(name, names);
+  if (!near.empty()) msg += "; did you mean " + Quote(near) + "?";
+  throw InputError(at, msg);
+}
+
+// SI factor of `unit` for a column of role `role`, or nullopt if it does not take it.
+std::optional<double> RoleUnitFactor(Role role, const std::string& unit) {
+  if (kRoles[role].sigma && unit == "%") return 0.01;
+  if (role == kEpsV || role == kSigmaEps) return io::detail::StrainUnitFactor(unit);
+  return units::ToSiFactor(kRoles[role].quantity, unit);
+}
+
+// Sets the unit of `c` and its factor; throws at `at` for a unit the role does not take.
+void SetColumnUnit(Column& c, const std::string& unit, const SourceLocation& at) {
+  const std::string name = kRoles[c.role].name;
+  c.unit = unit;
+  const RoleInfo& info = kRoles[c.role];
+  if (info.sigma && c.unit == "%") {
+    c.relative = true;
+    c.factor = 0.01;
+  } else if (c.role == kEpsV || c.role == kSigmaEps) {
+    c.factor = io::detail::StrainUnitFactorOrThrow(c.unit, "column " + Quote(name), at);
+  } else {
+    c.factor = UnitFactor(c.unit, info.quantity, "column " + Quote(name), at);
+  }
+}
+
+// One entry of the list form of data.columns: "name unit".
 Column ParseColumn(const YAML::Node& node, const std::string& file, const std::string& path) {
   Column c;
   c.at = Where(file, node.Mark());
@@ -377,57 +415,98 @@ Column ParseColumn(const YAML::Node& node, const std::string& file, const std::s
   const std::string text = node.Scalar();
   const size_t space = text.find_first_of(" \t");
   const std::string name = text.substr(0, space);
-  std::vector<std::string> names;
-  for (const auto& r : kRoles) names.emplace_back(r.name);
-  for (int r = 0; r < kNumRoles; ++r)
-    if (name == kRoles[static_cast<size_t>(r)].name) c.role = static_cast<Role>(r);
-  if (c.role == kNumRoles) {
-    std::string msg = "unknown column " + Quote(name) + " (columns: " + Join(names) + ")";
-    const std::string near = NearestWord(name, names);
-    if (!near.empty()) msg += "; did you mean " + Quote(near) + "?";
-    throw InputError(c.at, msg);
-  }
+  c.role = RoleByName(name, c.at);
+  c.header = name;
   if (space == std::string::npos || text.find_first_not_of(" \t", space) == std::string::npos)
     throw InputError(c.at, "column " + Quote(name) + " needs a unit (e.g. '" + name + " " +
                                std::string(units::AcceptedUnits(kRoles[c.role].quantity).front()) + "')");
-  c.unit = text.substr(text.find_first_not_of(" \t", space));
-  const RoleInfo& info = kRoles[c.role];
-  if (info.sigma && c.unit == "%") {
-    c.relative = true;
-    c.factor = 0.01;
-  } else if (c.role == kEpsV || c.role == kSigmaEps) {
-    c.factor = io::detail::StrainUnitFactorOrThrow(c.unit, "column " + Quote(name), c.at);
-  } else {
-    c.factor = UnitFactor(c.unit, info.quantity, "column " + Quote(name), c.at);
-  }
+  SetColumnUnit(c, text.substr(text.find_first_not_of(" \t", space)), c.at);
   return c;
 }
 
+// One entry of the map form of data.columns: `role: header name` or
+// `role: {column: header name, unit: U}`. The unit stays empty (to be taken
+// from the file header) unless the study gives it.
+Column ParseMappedColumn(const Field& entry, const std::string& file) {
+  Column c;
+  c.role = RoleByName(entry.key, entry.key_at);
+  c.mapped = true;
+  c.at = entry.at;
+  if (entry.node.IsMap()) {
+    MapReader m(entry.node, file, "column " + Quote(entry.key), entry.path);
+    Field column = m.Get("column"), unit = m.Get("unit");
+    m.Finish();
+    if (!column) throw InputError(m.at(), "missing required key '" + entry.path + ".column' (the file's header name)");
+    c.header = column.Scalar();
+    c.at = column.at;
+    if (unit) {
+      if (unit.Scalar().empty()) throw InputError(unit.at, Quote(unit.path) + " must not be empty");
+      SetColumnUnit(c, unit.Scalar(), unit.at);
+    }
+  } else {
+    c.header = entry.Scalar();
+  }
+  if (c.header.empty()) throw InputError(c.at, "the header name of column " + Quote(entry.key) + " must not be empty");
+  return c;
+}
+
+// data.columns in either form, in the order written.
+std::vector<Column> ReadColumnList(const Field& cols, const std::string& file) {
+  std::vector<Column> order;
+  if (cols.node.IsMap()) {
+    if (cols.node.size() == 0) throw InputError(cols.at, "'data.columns' is empty");
+    std::vector<std::string> keys;
+    for (const auto& kv : cols.node) keys.push_back(kv.first.Scalar());
+    MapReader m(cols.node, file, "data.columns", "data.columns");
+    for (const std::string& k : keys) order.push_back(ParseMappedColumn(m.Get(k), file));
+    m.Finish();
+  } else {
+    cols.ExpectList();
+    if (cols.node.size() == 0) throw InputError(cols.at, "'data.columns' is empty");
+    for (size_t i = 0; i < cols.node.size(); ++i)
+      order.push_back(ParseColumn(cols.node[i], file, "data.columns[" + std::to_string(i + 1) + "]"));
+  }
+  for (size_t i = 0; i < order.size(); ++i)
+    for (size_t j = 0; j < i; ++j)
+      if (order[i].role == order[j].role)
+        throw InputError(order[i].at, std::string("column '") + kRoles[order[i].role].name + "' is declared twice");
+  return order;
+}
+
+// What the file must hold for column `c` (its header name and any unit).
+io::detail::ColumnWish WishFor(const Column& c) {
+  io::detail::ColumnWish w;
+  w.role = kRoles[c.role].name;
+  w.header = c.header;
+  w.unit = c.unit;
+  w.at = c.at;
+  const Role role = c.role;
+  w.accepts = [role](const std::string& u) { return RoleUnitFactor(role, u).has_value(); };
+  return w;
+}
+
+// Whether two units of a role are the same (same SI factor, both or neither relative).
+bool SameUnit(Role role, const std::string& a, const std::string& b) {
+  if ((a == "%") != (b == "%")) return !kRoles[role].sigma && RoleUnitFactor(role, a) == RoleUnitFactor(role, b);
+  const auto fa = RoleUnitFactor(role, a), fb = RoleUnitFactor(role, b);
+  return fa && fb && *fa == *fb;
+}
+
 // Converts one cell's text; `where` is the cell.
-Cell ReadCell(const std::string& text, const Column& col, const SourceLocation& where, const std::string& context) {
+Cell ReadCell(const std::string& text, const Column& col, const SourceLocation& where, const std::string& context,
+              char decimal = '.') {
   Cell cell;
   cell.at = where;
   if (text.empty())
     throw InputError(where, "empty cell in " + context);
-  if (!csv::ParseNumber(text, cell.raw))
-    throw InputError(where, "non-numeric value " + Quote(text) + " in " + context);
+  if (!csv::ParseNumber(text, cell.raw, decimal))
+    throw InputError(where, "non-numeric value " + Quote(text) + " in " + context + csv::DecimalHint(text, decimal));
   if (!std::isfinite(cell.raw)) throw InputError(where, kRoles[col.role].name + std::string(" = ") + text + " is not finite");
   cell.value = cell.raw * col.factor;
   return cell;
 }
 
 std::string ShowCell(const Cell& c, const Column& col) { return FormatNumber(c.raw) + " " + col.unit; }
-
-// Splits a CSV header field "P_c", "P_c [MPa]", "P_c (MPa)" or "P_c MPa" into name and unit.
-std::pair<std::string, std::string> SplitHeader(const std::string& field) {
-  const size_t cut = field.find_first_of(" \t[(");
-  if (cut == std::string::npos) return {field, ""};
-  std::string name = field.substr(0, cut);
-  std::string rest = field.substr(cut);
-  const size_t a = rest.find_first_not_of(" \t[(");
-  const size_t b = rest.find_last_not_of(" \t])");
-  return {name, a == std::string::npos ? "" : rest.substr(a, b - a + 1)};
-}
 
 std::string ResolveDataPath(const std::string& study_path, const std::string& file) {
   const std::filesystem::path p(file);
@@ -802,6 +881,11 @@ class Loader {
   void ReadSample(const YAML::Node& node, size_t index);
   std::vector<RawRow> ReadData(const Field& data, const std::string& sample_what,
                                std::array<std::optional<Column>, kNumRoles>& columns);
+  std::vector<RawRow> ReadCsvData(const Field& file, const csv::ReadOptions& dialect, const std::vector<Column>& order,
+                                  std::array<std::optional<Column>, kNumRoles>& columns);
+  std::vector<const Column*> MatchHeader(const csv::Table& table, const std::string& name,
+                                         const std::vector<Column>& order,
+                                         std::array<std::optional<Column>, kNumRoles>& columns);
   void Warn(const SourceLocation& at, const std::string& message) {
     study_.warnings.push_back(at.ToString() + ": warning: " + message);
   }
@@ -924,52 +1008,90 @@ Study Loader::Parse(std::string_view text) {
 std::vector<RawRow> Loader::ReadData(const Field& data, const std::string& sample_what,
                                      std::array<std::optional<Column>, kNumRoles>& columns) {
   MapReader d(data.node, file_, "data of " + sample_what, "data");
-  Field cols = d.Get("columns"), rows = d.Get("rows"), file = d.Get("file");
+  Field cols = d.Get("columns"), rows = d.Get("rows"), file = d.Get("file"), delimiter = d.Get("delimiter"),
+        decimal = d.Get("decimal");
   d.Finish();
   if (!cols) throw InputError(d.at(), "missing required key 'data.columns' in " + sample_what);
-  cols.ExpectList();
-  if (cols.node.size() == 0) throw InputError(cols.at, "'data.columns' is empty");
-  std::vector<Column> order;
-  const YAML::Node& col_list = cols.node;
-  for (size_t i = 0; i < col_list.size(); ++i) {
-    Column c = ParseColumn(col_list[i], file_, "data.columns[" + std::to_string(i + 1) + "]");
-    if (columns[c.role])
-      throw InputError(c.at, std::string("column '") + kRoles[c.role].name + "' is declared twice");
-    columns[c.role] = c;
-    order.push_back(c);
-  }
+  const std::vector<Column> order = ReadColumnList(cols, file_);
+  for (const Column& c : order) columns[c.role] = c;
   if (rows && file) throw InputError(file.key_at, "give either 'data.rows' or 'data.file', not both");
   if (!rows && !file) throw InputError(d.at(), "missing 'data.rows' or 'data.file' in " + sample_what);
+  if (file) return ReadCsvData(file, io::detail::ReadDialectKeys(delimiter, decimal), order, columns);
+  for (const Field* f : {&delimiter, &decimal})
+    if (*f) throw InputError(f->key_at, Quote(f->path) + " applies to 'data.file' only; inline rows are YAML numbers");
+  if (cols.node.IsMap())
+    throw InputError(cols.at, "a 'data.columns' map names columns of a file; inline 'data.rows' need the list form "
+                              "('name unit', in row order)");
 
+  rows.ExpectList();
+  if (rows.node.size() == 0) throw InputError(rows.at, "'data.rows' is empty: " + sample_what + " has no data points");
   std::vector<RawRow> out;
-  if (rows) {
-    rows.ExpectList();
-    if (rows.node.size() == 0) throw InputError(rows.at, "'data.rows' is empty: " + sample_what + " has no data points");
-    const YAML::Node& row_list = rows.node;
-    for (size_t i = 0; i < row_list.size(); ++i) {
-      const YAML::Node row = row_list[i];
-      RawRow r;
-      r.where = Where(file_, row.Mark());
-      if (!row.IsSequence())
-        throw InputError(r.where, "data row " + std::to_string(i + 1) + " must be a list of " +
-                                      std::to_string(order.size()) + " numbers, found " + TypeName(row));
-      if (row.size() != order.size())
-        throw InputError(r.where, "data row " + std::to_string(i + 1) + " has " + std::to_string(row.size()) +
-                                      " values, expected " + std::to_string(order.size()) + " (one per column)");
-      for (size_t j = 0; j < order.size(); ++j) {
-        const YAML::Node cell = row[j];
-        const SourceLocation at = Where(file_, cell.Mark());
-        const std::string context = "data row " + std::to_string(i + 1) + ", column " + std::to_string(j + 1) +
-                                    " (" + kRoles[order[j].role].name + ")";
-        if (!cell.IsScalar()) throw InputError(at, "non-numeric value in " + context + ": found " + TypeName(cell));
-        r.cells[order[j].role] = ReadCell(cell.Scalar(), order[j], at, context);
-      }
-      out.push_back(std::move(r));
+  const YAML::Node& row_list = rows.node;
+  for (size_t i = 0; i < row_list.size(); ++i) {
+    const YAML::Node row = row_list[i];
+    RawRow r;
+    r.where = Where(file_, row.Mark());
+    if (!row.IsSequence())
+      throw InputError(r.where, "data row " + std::to_string(i + 1) + " must be a list of " +
+                                    std::to_string(order.size()) + " numbers, found " + TypeName(row));
+    if (row.size() != order.size())
+      throw InputError(r.where, "data row " + std::to_string(i + 1) + " has " + std::to_string(row.size()) +
+                                    " values, expected " + std::to_string(order.size()) + " (one per column)");
+    for (size_t j = 0; j < order.size(); ++j) {
+      const YAML::Node cell = row[j];
+      const SourceLocation at = Where(file_, cell.Mark());
+      const std::string context = "data row " + std::to_string(i + 1) + ", column " + std::to_string(j + 1) +
+                                  " (" + kRoles[order[j].role].name + ")";
+      if (!cell.IsScalar()) throw InputError(at, "non-numeric value in " + context + ": found " + TypeName(cell));
+      r.cells[order[j].role] = ReadCell(cell.Scalar(), order[j], at, context);
     }
-    return out;
+    out.push_back(std::move(r));
   }
+  return out;
+}
 
-  // CSV file.
+// Places each declared column in the file's header (setting units taken from
+// the header on `columns`); returns, per header field, its column or nullptr
+// (a field the columns map does not name, which is then not read).
+std::vector<const Column*> Loader::MatchHeader(const csv::Table& table, const std::string& name,
+                                               const std::vector<Column>& order,
+                                               std::array<std::optional<Column>, kNumRoles>& columns) {
+  std::vector<const Column*> by_field(table.header.fields.size(), nullptr);
+  std::vector<io::detail::FoundColumn> found;
+  std::vector<std::string> declared;
+  const bool list_form = !order.front().mapped;
+  for (const Column& c : order) {
+    found.push_back(io::detail::FindColumn(table, WishFor(c)));
+    if (found.back()) by_field[static_cast<size_t>(found.back().index)] = &*columns[c.role];
+    declared.push_back(c.header);
+  }
+  for (size_t i = 0; list_form && i < by_field.size(); ++i) {
+    if (by_field[i] != nullptr) continue;
+    const std::string hname = csv::SplitHeaderField(table.header.fields[i]).name;
+    std::string msg = "header mismatch: column " + Quote(hname) + " of " + Quote(name) +
+                      " is not declared in data.columns (" + Join(declared) + ")";
+    const std::string near = NearestWord(hname, declared);
+    if (!near.empty()) msg += "; did you mean " + Quote(near) + "?";
+    throw InputError(table.header.Where(table.file, i), msg);
+  }
+  for (size_t k = 0; k < order.size(); ++k) {
+    Column& c = *columns[order[k].role];
+    const io::detail::FoundColumn& f = found[k];
+    if (!f && list_form)
+      throw InputError({table.file, table.header.line, 0}, "declared column '" + c.header +
+                                                               "' is missing from the header of " + Quote(name));
+    if (!f) io::detail::ThrowColumnNotInHeader(table, WishFor(c), name);
+    const Role role = c.role;
+    const std::string unit = io::detail::ColumnUnit(
+        f, WishFor(c), [role](const std::string& a, const std::string& b) { return SameUnit(role, a, b); });
+    if (c.unit.empty()) SetColumnUnit(c, unit, f.at);
+  }
+  return by_field;
+}
+
+std::vector<RawRow> Loader::ReadCsvData(const Field& file, const csv::ReadOptions& dialect,
+                                        const std::vector<Column>& order,
+                                        std::array<std::optional<Column>, kNumRoles>& columns) {
   const std::string& name = file.Scalar();
   const std::string path = ResolveDataPath(file_, name);
   bool ok = false;
@@ -980,46 +1102,13 @@ std::vector<RawRow> Loader::ReadData(const Field& data, const std::string& sampl
   bool seen = false;
   for (const auto& in : study_.inputs) seen = seen || (in.path == path && in.role == "data");
   if (!seen) study_.inputs.push_back({path, "data"});
-  const csv::Table table = csv::ParseCsv(text, path);
+  const csv::Table table = csv::ParseCsv(text, path, dialect);
   if (!table.has_header) throw InputError({path, 0, 0}, "data file " + Quote(name) + " has no header line");
 
-  // Map header fields onto declared columns.
-  std::vector<std::string> declared;
-  for (const auto& c : order) declared.emplace_back(kRoles[c.role].name);
-  std::vector<const Column*> by_field(table.header.fields.size(), nullptr);
-  for (size_t i = 0; i < table.header.fields.size(); ++i) {
-    const auto [hname, hunit] = SplitHeader(table.header.fields[i]);
-    const SourceLocation at = table.header.Where(path, i);
-    const Column* col = nullptr;
-    for (const auto& c : order)
-      if (hname == kRoles[c.role].name) col = &c;
-    if (col == nullptr) {
-      std::string msg = "header mismatch: column " + Quote(hname) + " of " + Quote(name) +
-                        " is not declared in data.columns (" + Join(declared) + ")";
-      const std::string near = NearestWord(hname, declared);
-      if (!near.empty()) msg += "; did you mean " + Quote(near) + "?";
-      throw InputError(at, msg);
-    }
-    for (size_t k = 0; k < i; ++k)
-      if (by_field[k] == col) throw InputError(at, "header mismatch: column " + Quote(hname) + " appears twice");
-    if (!hunit.empty() && hunit != col->unit) {
-      const auto f = col->relative ? (hunit == "%" ? std::optional<double>(0.01) : std::nullopt)
-                                   : units::ToSiFactor(kRoles[col->role].quantity, hunit);
-      if (!f || *f != col->factor)
-        throw InputError(at, "header mismatch: column " + Quote(hname) + " is declared in " + col->unit +
-                                 " but the file header says " + hunit);
-    }
-    by_field[i] = col;
-  }
-  for (const auto& c : order) {
-    bool found = false;
-    for (const Column* p : by_field) found = found || p == &c;
-    if (!found)
-      throw InputError({path, table.header.line, 0}, std::string("declared column '") + kRoles[c.role].name +
-                                                         "' is missing from the header of " + Quote(name));
-  }
+  const std::vector<const Column*> by_field = MatchHeader(table, name, order, columns);
   if (table.rows.empty())
     throw InputError({path, table.header.line, 0}, "data file " + Quote(name) + " has no data rows");
+  std::vector<RawRow> out;
   for (const auto& row : table.rows) {
     RawRow r;
     r.where = {path, row.line, 0};
@@ -1027,9 +1116,10 @@ std::vector<RawRow> Loader::ReadData(const Field& data, const std::string& sampl
       throw InputError(r.where, "expected " + std::to_string(by_field.size()) + " fields (as in the header), found " +
                                     std::to_string(row.fields.size()));
     for (size_t j = 0; j < row.fields.size(); ++j) {
+      if (by_field[j] == nullptr) continue;
       const Column& col = *by_field[j];
       const std::string context = "column " + std::to_string(j + 1) + " (" + kRoles[col.role].name + ")";
-      r.cells[col.role] = ReadCell(row.fields[j], col, row.Where(path, j), context);
+      r.cells[col.role] = ReadCell(row.fields[j], col, row.Where(path, j), context, row.decimal);
     }
     out.push_back(std::move(r));
   }
