@@ -62,6 +62,28 @@ csv::ReadOptions ReadDialectKeys(const Field& delimiter, const Field& decimal) {
   return o;
 }
 
+MappedName ReadMappedName(const Field& entry, const std::string& file) {
+  MappedName n;
+  n.at = entry.at;
+  if (entry.node.IsMap()) {
+    MapReader m(entry.node, file, "column " + Quote(entry.key), entry.path);
+    Field column = m.Get("column"), unit = m.Get("unit");
+    m.Finish();
+    if (!column) throw InputError(m.at(), "missing required key '" + entry.path + ".column' (the file's header name)");
+    n.header = column.Scalar();
+    n.at = column.at;
+    if (unit) {
+      n.unit = unit.Scalar();
+      n.unit_at = unit.at;
+      if (n.unit.empty()) throw InputError(unit.at, Quote(unit.path) + " must not be empty");
+    }
+  } else {
+    n.header = entry.Scalar();
+  }
+  if (n.header.empty()) throw InputError(n.at, "the header name of column " + Quote(entry.key) + " must not be empty");
+  return n;
+}
+
 FoundColumn FindColumn(const csv::Table& table, const ColumnWish& wish) {
   FoundColumn found;
   for (size_t i = 0; i < table.header.fields.size(); ++i) {
@@ -88,9 +110,9 @@ std::string ColumnUnit(const FoundColumn& found, const ColumnWish& wish,
                                    " but the file header says " + found.header_unit);
   if (!wish.unit.empty()) return wish.unit;
   if (!found.header_unit.empty()) return found.header_unit;
-  throw InputError(found.at, "column " + Quote(field) + " (" + wish.role + ") has no unit: write it in the header (" +
-                                 Quote(field + " [unit]") + ") or in the study (" + wish.role + ": {column: " + field +
-                                 ", unit: ...})");
+  const std::string named = Quote(field) + (field == wish.role ? "" : " (" + wish.role + ")");
+  throw InputError(found.at, "column " + named + " needs a unit: write it in the header (" + Quote(field + " [unit]") +
+                                 ") or in the study (" + wish.role + ": {column: " + field + ", unit: ...})");
 }
 
 void ThrowColumnNotInHeader(const csv::Table& table, const ColumnWish& wish, const std::string& file_name) {

@@ -19,6 +19,16 @@ namespace porofit::io::detail {
 /// for a decimal comma with a comma delimiter.
 csv::ReadOptions ReadDialectKeys(const Field& delimiter, const Field& decimal);
 
+/// One entry of a study's column map (`role: header name` or
+/// `role: {column: header name, unit: U}`): the header name and the unit, if
+/// given. Throws InputError for an empty name, an unknown key or an empty unit.
+struct MappedName {
+  std::string header, unit;
+  SourceLocation at;       ///< the header name in the study
+  SourceLocation unit_at;  ///< the unit in the study (if given)
+};
+MappedName ReadMappedName(const Field& entry, const std::string& file);
+
 /// A column the study asks a file for.
 struct ColumnWish {
   std::string role;    ///< porofit's name for it (P_c, K, ...), for messages

@@ -4,6 +4,7 @@
 #include "study_batch.h"
 
 #include <algorithm>
+#include <array>
 #include <cmath>
 #include <filesystem>
 #include <fstream>
@@ -13,6 +14,7 @@
 
 #include "porofit/core/units.h"
 #include "porofit/io/csv.h"
+#include "csv_columns.h"
 
 namespace porofit::io::detail {
 namespace {
@@ -35,7 +37,8 @@ std::string Resolve(const std::string& study_path, const std::string& file) {
 
 // Reads and parses one CSV named by `f` (a scalar field), recording it as a
 // "data" input. The header line is required.
-csv::Table ReadTable(const Field& f, const std::string& study_file, Study& study, const std::string& what) {
+csv::Table ReadTable(const Field& f, const std::string& study_file, Study& study, const std::string& what,
+                     const csv::ReadOptions& dialect) {
   const std::string& name = f.Scalar();
   const std::string path = Resolve(study_file, name);
   std::ifstream in(path, std::ios::binary);
@@ -47,7 +50,7 @@ csv::Table ReadTable(const Field& f, const std::string& study_file, Study& study
   bool seen = false;
   for (const auto& x : study.inputs) seen = seen || (x.path == path && x.role == "data");
   if (!seen) study.inputs.push_back({path, "data"});
-  csv::Table t = csv::ParseCsv(buffer.str(), path);
+  csv::Table t = csv::ParseCsv(buffer.str(), path, dialect);
   if (!t.has_header) throw InputError({path, 0, 0}, what + " " + Quote(name) + " has no header line");
   if (t.rows.empty()) throw InputError({path, t.header.line, 0}, what + " " + Quote(name) + " has no data rows");
   return t;
@@ -55,12 +58,8 @@ csv::Table ReadTable(const Field& f, const std::string& study_file, Study& study
 
 // "P_c [MPa]", "P_c (MPa)" or "P_c MPa" -> name and unit (unit may be empty).
 std::pair<std::string, std::string> SplitHeader(const std::string& field) {
-  const size_t cut = field.find_first_of(" \t[(");
-  if (cut == std::string::npos) return {field, ""};
-  const std::string rest = field.substr(cut);
-  const size_t a = rest.find_first_not_of(" \t[(");
-  const size_t b = rest.find_last_not_of(" \t])");
-  return {field.substr(0, cut), a == std::string::npos ? "" : rest.substr(a, b - a + 1)};
+  csv::HeaderField h = csv::SplitHeaderField(field);
+  return {std::move(h.name), std::move(h.unit)};
 }
 
 double Factor(Quantity q, const std::string& unit, const std::string& column, const SourceLocation& at) {
@@ -86,7 +85,9 @@ double Cell(const csv::Row& row, const NumColumn& c, const std::string& file) {
   const SourceLocation at = row.Where(file, static_cast<size_t>(c.index));
   if (text.empty()) throw InputError(at, "empty cell in column " + Quote(c.name));
   double v = 0;
-  if (!csv::ParseNumber(text, v)) throw InputError(at, "non-numeric value " + Quote(text) + " in column " + Quote(c.name));
+  if (!csv::ParseNumber(text, v, row.decimal))
+    throw InputError(at, "non-numeric value " + Quote(text) + " in column " + Quote(c.name) +
+                             csv::DecimalHint(text, row.decimal));
   if (!std::isfinite(v)) throw InputError(at, c.name + " = " + text + " is not finite");
   return v * c.factor;
 }
@@ -120,13 +121,118 @@ const std::vector<std::string>& SampleKeys() {
   return k;
 }
 
+// The columns of the sample data file: the sample-id column and the numeric
+// columns by role.
+struct DataColumns {
+  int key = -1;
+  NumColumn p, pc, pp, k, sk;
+};
+
+struct DataRole {
+  const char* name;
+  Quantity quantity;
+  bool sigma;  // may be given in '%' (of the row's K)
+  NumColumn DataColumns::*column;
+};
+
+constexpr std::array<DataRole, 5> kDataRoles = {{{"P", Quantity::kPressure, false, &DataColumns::p},
+                                                 {"P_c", Quantity::kPressure, false, &DataColumns::pc},
+                                                 {"P_p", Quantity::kPressure, false, &DataColumns::pp},
+                                                 {"K", Quantity::kModulus, false, &DataColumns::k},
+                                                 {"sigma_K", Quantity::kModulus, true, &DataColumns::sk}}};
+
+// What the study asks of role `r`: its own name, or the name (and unit) the
+// `sample_table.columns` map gives it.
+ColumnWish DataWish(const DataRole& r, const MappedName* mapped, const SourceLocation& header_at) {
+  ColumnWish w;
+  w.role = r.name;
+  w.header = mapped ? mapped->header : r.name;
+  w.unit = mapped ? mapped->unit : "";
+  w.at = mapped ? mapped->at : header_at;
+  w.accepts = [r](const std::string& u) { return (r.sigma && u == "%") || units::ToSiFactor(r.quantity, u); };
+  return w;
+}
+
+NumColumn DataColumn(const DataRole& r, const FoundColumn& f, const std::string& unit) {
+  NumColumn c;
+  c.index = f.index;
+  c.name = r.name;
+  c.unit = unit;
+  if (r.sigma && unit == "%") {
+    c.relative = true;
+    c.factor = 0.01;
+  } else {
+    c.factor = Factor(r.quantity, unit, r.name, f.at);
+  }
+  return c;
+}
+
+// Reads the header of the sample data file: columns found by their role names
+// or by the names a `sample_table.columns` map gives (then unnamed columns are
+// ignored; without a map every column must be known). Units from the header
+// or the map (docs/study-file.md).
+DataColumns ReadDataHeader(const csv::Table& dt, const std::string& key_name, const Field& map,
+                           const std::string& study_file) {
+  std::map<std::string, MappedName> mapped;
+  if (map) {
+    MapReader m(map.node, study_file, "sample_table.columns", "sample_table.columns");
+    for (const DataRole& r : kDataRoles) {
+      const Field e = m.Get(r.name);
+      if (!e) continue;
+      mapped[r.name] = ReadMappedName(e, study_file);
+      if (!mapped[r.name].unit.empty() && !(r.sigma && mapped[r.name].unit == "%"))
+        Factor(r.quantity, mapped[r.name].unit, r.name, mapped[r.name].unit_at);
+    }
+    m.Finish();
+  }
+  const SourceLocation header_at{dt.file, dt.header.line, 0};
+  DataColumns out;
+  ColumnWish key;
+  key.role = "sample id";
+  key.header = key_name;
+  out.key = FindColumn(dt, key).index;
+  std::vector<bool> claimed(dt.header.fields.size(), false);
+  if (out.key >= 0) claimed[static_cast<size_t>(out.key)] = true;
+  std::vector<FoundColumn> found;
+  for (const DataRole& r : kDataRoles) {
+    const auto it = mapped.find(r.name);
+    const ColumnWish w = DataWish(r, it == mapped.end() ? nullptr : &it->second, header_at);
+    found.push_back(FindColumn(dt, w));
+    if (found.back()) claimed[static_cast<size_t>(found.back().index)] = true;
+    else if (it != mapped.end()) ThrowColumnNotInHeader(dt, w, std::filesystem::path(dt.file).filename().string());
+  }
+  const std::vector<std::string> known = {key_name, "P", "P_c", "P_p", "K", "sigma_K"};
+  for (size_t i = 0; !map && i < claimed.size(); ++i) {
+    if (claimed[i]) continue;
+    const std::string name = csv::SplitHeaderField(dt.header.fields[i]).name;
+    std::string msg = "unknown column " + Quote(name) + " in the sample data file (columns: " + Join(known) + ")";
+    const std::string near = NearestWord(name, known);
+    if (!near.empty()) msg += "; did you mean " + Quote(near) + "?";
+    throw InputError(dt.header.Where(dt.file, i), msg);
+  }
+  for (size_t i = 0; i < kDataRoles.size(); ++i) {
+    const DataRole& r = kDataRoles[i];
+    if (!found[i]) continue;
+    const auto it = mapped.find(r.name);
+    const ColumnWish w = DataWish(r, it == mapped.end() ? nullptr : &it->second, header_at);
+    const std::string unit = ColumnUnit(found[i], w, [r](const std::string& a, const std::string& b) {
+      if ((a == "%") != (b == "%")) return false;
+      const auto fa = units::ToSiFactor(r.quantity, a), fb = units::ToSiFactor(r.quantity, b);
+      return fa && fb && *fa == *fb;
+    });
+    out.*(r.column) = DataColumn(r, found[i], unit);
+  }
+  return out;
+}
+
 }  // namespace
 
 void ReadSampleTable(const Field& table, const std::string& study_file, const ModelRegistry& registry,
                      const BatchDefaults& defaults, Study& study) {
   MapReader m(table.node, study_file, "the sample table", "sample_table");
   Field file = m.Get("file"), data = m.Get("data"), key = m.Get("sample_column"),
-        calibrated = m.Get("uncertainty_calibrated");
+        calibrated = m.Get("uncertainty_calibrated"), columns = m.Get("columns"), delimiter = m.Get("delimiter"),
+        decimal = m.Get("decimal");
   m.Finish();
   if (!file) throw InputError(m.at(), "missing required key 'sample_table.file' (the CSV with one row per sample)");
   if (!data) throw InputError(m.at(), "missing required key 'sample_table.data' (the CSV of every sample's points)");
@@ -134,7 +240,8 @@ void ReadSampleTable(const Field& table, const std::string& study_file, const Mo
   if (key_name.empty()) throw InputError(key.at, "'sample_table.sample_column' must not be empty");
 
   // ---- the sample table's header
-  const csv::Table st = ReadTable(file, study_file, study, "sample table");
+  const csv::ReadOptions dialect = ReadDialectKeys(delimiter, decimal);
+  const csv::Table st = ReadTable(file, study_file, study, "sample table", dialect);
   const std::string& sf = st.file;
   std::unordered_map<std::string, int> col;
   NumColumn porosity, density, cycle;
@@ -179,50 +286,11 @@ void ReadSampleTable(const Field& table, const std::string& study_file, const Mo
                      "under 'grain_moduli' or 'none' per sample; K_s is never defaulted)");
 
   // ---- the data table's header
-  const csv::Table dt = ReadTable(data, study_file, study, "sample data file");
+  const csv::Table dt = ReadTable(data, study_file, study, "sample data file", dialect);
   const std::string& df = dt.file;
-  int c_key = -1;
-  NumColumn p, pc, pp, k, sk;
-  for (size_t i = 0; i < dt.header.fields.size(); ++i) {
-    const auto [name, unit] = SplitHeader(dt.header.fields[i]);
-    const SourceLocation at = dt.header.Where(df, i);
-    const int idx = static_cast<int>(i);
-    auto numeric = [&](NumColumn& c, Quantity q, bool sigma) {
-      if (c) throw InputError(at, "column " + Quote(name) + " appears twice in the sample data file");
-      if (unit.empty())
-        throw InputError(at, "column " + Quote(name) + " needs a unit in the header, e.g. '" + name + " [" +
-                                 std::string(units::AcceptedUnits(q).front()) + "]'");
-      c.index = idx;
-      c.name = name;
-      c.unit = unit;
-      if (sigma && unit == "%") {
-        c.relative = true;
-        c.factor = 0.01;
-      } else {
-        c.factor = Factor(q, unit, name, at);
-      }
-    };
-    if (name == key_name) {
-      if (c_key >= 0) throw InputError(at, "column " + Quote(name) + " appears twice in the sample data file");
-      c_key = idx;
-    } else if (name == "P") {
-      numeric(p, Quantity::kPressure, false);
-    } else if (name == "P_c") {
-      numeric(pc, Quantity::kPressure, false);
-    } else if (name == "P_p") {
-      numeric(pp, Quantity::kPressure, false);
-    } else if (name == "K") {
-      numeric(k, Quantity::kModulus, false);
-    } else if (name == "sigma_K") {
-      numeric(sk, Quantity::kModulus, true);
-    } else {
-      const std::vector<std::string> known = {key_name, "P", "P_c", "P_p", "K", "sigma_K"};
-      std::string msg = "unknown column " + Quote(name) + " in the sample data file (columns: " + Join(known) + ")";
-      const std::string near = NearestWord(name, known);
-      if (!near.empty()) msg += "; did you mean " + Quote(near) + "?";
-      throw InputError(at, msg);
-    }
-  }
+  const DataColumns dc = ReadDataHeader(dt, key_name, columns, study_file);
+  const int c_key = dc.key;
+  const NumColumn &p = dc.p, &pc = dc.pc, &pp = dc.pp, &k = dc.k, &sk = dc.sk;
   if (c_key < 0)
     throw InputError({df, dt.header.line, 0}, "the sample data file has no sample-id column " + Quote(key_name) +
                                                   " (set sample_table.sample_column to its name)");

@@ -431,22 +431,10 @@ Column ParseMappedColumn(const Field& entry, const std::string& file) {
   Column c;
   c.role = RoleByName(entry.key, entry.key_at);
   c.mapped = true;
-  c.at = entry.at;
-  if (entry.node.IsMap()) {
-    MapReader m(entry.node, file, "column " + Quote(entry.key), entry.path);
-    Field column = m.Get("column"), unit = m.Get("unit");
-    m.Finish();
-    if (!column) throw InputError(m.at(), "missing required key '" + entry.path + ".column' (the file's header name)");
-    c.header = column.Scalar();
-    c.at = column.at;
-    if (unit) {
-      if (unit.Scalar().empty()) throw InputError(unit.at, Quote(unit.path) + " must not be empty");
-      SetColumnUnit(c, unit.Scalar(), unit.at);
-    }
-  } else {
-    c.header = entry.Scalar();
-  }
-  if (c.header.empty()) throw InputError(c.at, "the header name of column " + Quote(entry.key) + " must not be empty");
+  const io::detail::MappedName n = io::detail::ReadMappedName(entry, file);
+  c.header = n.header;
+  c.at = n.at;
+  if (!n.unit.empty()) SetColumnUnit(c, n.unit, n.unit_at);
   return c;
 }
 
