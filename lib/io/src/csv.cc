@@ -67,19 +67,25 @@ char DetectDelimiter(std::string_view text, const ReadOptions& o, const std::str
       for (size_t k = 0; k < kinds.size() && !quoted; ++k)
         if (physical[i] == kinds[k] && count[k]++ == 0) first[k] = static_cast<int>(i) + 1;
     }
-    int found = -1;
-    for (size_t k = 0; k < kinds.size(); ++k) {
-      if (count[k] == 0) continue;
-      if (found >= 0) {
-        const auto& a = kinds[static_cast<size_t>(found)];
-        throw InputError({file, line, first[k]},
-                         "ambiguous delimiter: the header line holds both " + MarkName(a) + "s (" +
-                             std::to_string(count[static_cast<size_t>(found)]) + ") and " + MarkName(kinds[k]) +
-                             "s (" + std::to_string(count[k]) + "); declare the delimiter in the study");
+    // The kind met first on the line, and the one met next (if any).
+    int first_kind = -1, second_kind = -1;
+    for (int k = 0; k < static_cast<int>(kinds.size()); ++k) {
+      if (count[static_cast<size_t>(k)] == 0) continue;
+      if (first_kind < 0 || first[static_cast<size_t>(k)] < first[static_cast<size_t>(first_kind)]) {
+        second_kind = first_kind;
+        first_kind = k;
+      } else if (second_kind < 0 || first[static_cast<size_t>(k)] < first[static_cast<size_t>(second_kind)]) {
+        second_kind = k;
       }
-      found = static_cast<int>(k);
     }
-    return found < 0 ? ',' : kinds[static_cast<size_t>(found)];
+    if (second_kind >= 0) {
+      const auto a = static_cast<size_t>(first_kind), b = static_cast<size_t>(second_kind);
+      throw InputError({file, line, first[b]}, "ambiguous delimiter: the header line holds both " +
+                                                   MarkName(kinds[a]) + "s (" + std::to_string(count[a]) + ") and " +
+                                                   MarkName(kinds[b]) + "s (" + std::to_string(count[b]) +
+                                                   "); declare the delimiter in the study");
+    }
+    return first_kind < 0 ? ',' : kinds[static_cast<size_t>(first_kind)];
   }
   return ',';
 }
