@@ -12,7 +12,7 @@ namespace porofit {
 namespace {
 namespace fs = std::filesystem;
 
-int Run(const std::string& args) {
+int RunPorofit(const std::string& args) {
   const std::string cmd = std::string("'") + POROFIT_EXE + "' " + args + " >/dev/null 2>&1 </dev/null";
   const int status = std::system(cmd.c_str());
   return WIFEXITED(status) ? WEXITSTATUS(status) : -1;
@@ -20,10 +20,10 @@ int Run(const std::string& args) {
 
 TEST(LabExportCli, CheckAndFitAcceptTheSpreadsheetExport) {
   const std::string study = std::string(POROFIT_SOURCE_DIR) + "/samples/lab-export-study.yaml";
-  EXPECT_EQ(Run("check '" + study + "'"), 0);
+  EXPECT_EQ(RunPorofit("check '" + study + "'"), 0);
   const fs::path out = fs::temp_directory_path() / ("porofit-lab-export-" + std::to_string(::getpid()));
   fs::remove_all(out);
-  EXPECT_EQ(Run("fit '" + study + "' --out '" + out.string() + "'"), 0);
+  EXPECT_EQ(RunPorofit("fit '" + study + "' --out '" + out.string() + "'"), 0);
   EXPECT_TRUE(fs::exists(out / "parameters.csv"));
   fs::remove_all(out);
 }
