@@ -1,10 +1,9 @@
-// End-to-end tests of the porofit command line on the invented sample study
-// and on the bad-input corpus (tests/data/bad/cases.tsv).
+// End-to-end tests of the porofit command line on the invented sample study.
+// The bad-input corpus runs in bad_input_corpus_test.cc.
 #include <gtest/gtest.h>
 #include <sys/wait.h>
 #include <unistd.h>
 
-#include <cctype>
 #include <cstdlib>
 #include <filesystem>
 #include <fstream>
@@ -325,62 +324,6 @@ TEST(SampleStudy, BadTimestampOverrideIsRejected) {
   EXPECT_EQ(WEXITSTATUS(status), 2);
   EXPECT_FALSE(fs::exists(s.dir() / "o"));
 }
-
-// ---------------------------------------------------------------- bad inputs
-
-struct BadCase {
-  std::string study, location, fragment;
-};
-
-// Keeps CTest names readable (gtest would print the raw bytes).
-void PrintTo(const BadCase& c, std::ostream* os) { *os << c.study; }
-
-std::vector<BadCase> ReadCases() {
-  std::vector<BadCase> cases;
-  std::ifstream in(std::string(POROFIT_TEST_DATA_DIR) + "/bad/cases.tsv");
-  std::string line;
-  std::getline(in, line);  // header: study, location, fragment
-  while (std::getline(in, line)) {
-    if (!line.empty() && line.back() == '\r') line.pop_back();
-    if (line.empty() || line[0] == '#') continue;
-    std::vector<std::string> cols;
-    std::stringstream ss(line);
-    for (std::string c; std::getline(ss, c, '\t');) cols.push_back(c);
-    if (cols.size() >= 3) cases.push_back({cols[0], cols[1], cols[2]});
-  }
-  return cases;
-}
-
-TEST(BadCorpus, ManifestListsCases) { EXPECT_GE(ReadCases().size(), 10u); }
-
-class BadInput : public ::testing::TestWithParam<BadCase> {};
-
-TEST_P(BadInput, FailsWithLocationAndMessageAndWritesNothing) {
-  const BadCase& c = GetParam();
-  Scratch s;
-  const std::string study = std::string(POROFIT_TEST_DATA_DIR) + "/bad/" + c.study;
-  const fs::path out = s.dir() / "out";
-  for (const std::string& cmd : {"fit " + Quote(study) + " --out " + Quote(out.string()), "check " + Quote(study)}) {
-    const Outcome r = s.Run(cmd);
-    EXPECT_EQ(r.exit_code, 2) << cmd << "\n" << r.err;
-    EXPECT_NE(r.err.find(c.location + ":"), std::string::npos) << "expected location " << c.location << " in: " << r.err;
-    EXPECT_NE(r.err.find(c.fragment), std::string::npos) << "expected '" << c.fragment << "' in: " << r.err;
-    EXPECT_FALSE(fs::exists(out)) << cmd;
-    EXPECT_TRUE(r.out.empty()) << r.out;
-  }
-}
-
-std::string CaseName(const ::testing::TestParamInfo<BadCase>& info) {
-  std::string n = info.param.study;
-  const auto dot = n.rfind('.');
-  if (dot != std::string::npos) n = n.substr(0, dot);
-  for (char& ch : n) {
-    if (!std::isalnum(static_cast<unsigned char>(ch))) ch = '_';
-  }
-  return n + "_" + std::to_string(info.index);
-}
-
-INSTANTIATE_TEST_SUITE_P(Corpus, BadInput, ::testing::ValuesIn(ReadCases()), CaseName);
 
 }  // namespace
 }  // namespace porofit

@@ -27,12 +27,13 @@ std::vector<BadCase> ReadManifest() {
   bool header = true;
   while (std::getline(in, line)) {
     if (header) { header = false; continue; }
-    if (line.empty()) continue;
+    if (!line.empty() && line.back() == '\r') line.pop_back();
+    if (line.empty() || line[0] == '#') continue;
     std::istringstream fields(line);
     BadCase c;
     std::getline(fields, c.study, '\t');
     std::getline(fields, c.location, '\t');
-    std::getline(fields, c.fragment);
+    std::getline(fields, c.fragment, '\t');  // an optional exit-status column may follow
     out.push_back(c);
   }
   return out;
