@@ -12,6 +12,7 @@
 #include <filesystem>
 #include <fstream>
 #include <iterator>
+#include <ostream>
 #include <sstream>
 #include <string>
 #include <vector>
@@ -106,6 +107,9 @@ struct Harm {
   std::string why;       // fragment of the reason
 };
 
+// Keeps CTest names readable (gtest would print the raw bytes).
+void PrintTo(const Harm& h, std::ostream* os) { *os << h.name; }
+
 std::string Expand(std::string s, const fs::path& root) {
   const std::string key = "$ROOT";
   for (size_t at = s.find(key); at != std::string::npos; at = s.find(key)) s.replace(at, key.size(), root.string());
@@ -157,6 +161,29 @@ INSTANTIATE_TEST_SUITE_P(
         Harm{"TheLasLog", "study", "data/QV-14-density.las", "$ROOT/study/data/QV-14-density.las",
              "it is the input data file"}),
     [](const ::testing::TestParamInfo<Harm>& i) { return i.param.name; });
+
+// The sample table and its data CSV are inputs like any other: their folder
+// is protected, the study file's folder is not.
+TEST(SampleTableStudy, ItsTablesFolderIsProtectedAndTheStudyFolderIsNot) {
+  StudyCopy c;
+  const fs::path tables = c.study_dir() / "tables";
+  fs::create_directories(tables);
+  std::ofstream(tables / "samples.csv") << "id,lithology,porosity [%],bulk_density [g/cc]\n"
+                                           "A-1,invented sandstone,20,2.30\n";
+  std::ofstream(tables / "points.csv") << "sample,P [MPa],K [GPa]\nA-1,5,10\nA-1,10,12\nA-1,20,14\nA-1,30,15\n";
+  std::ofstream(c.study_dir() / "batch.yaml") << "name: batch (invented)\n"
+                                                 "defaults:\n  models: [linear]\n"
+                                                 "sample_table:\n  file: tables/samples.csv\n  data: tables/points.csv\n";
+  const auto before = c.Snapshot();
+  for (const char* out : {"tables", "tables/results"}) {
+    const Outcome r = c.Run(c.study_dir(), std::string("fit batch.yaml -q --overwrite --out ") + out);
+    EXPECT_EQ(r.exit_code, 2) << out << ": " << r.err;
+    EXPECT_NE(r.err.find((tables / "samples.csv").string()), std::string::npos) << r.err;
+    EXPECT_EQ(c.Snapshot(), before) << out;
+  }
+  const Outcome ok = c.Run(c.study_dir(), "fit batch.yaml -q --out results");
+  EXPECT_EQ(ok.exit_code, 0) << ok.err;
+}
 
 // ---------------------------------------------------------------- --overwrite
 
