@@ -51,8 +51,9 @@ class StudyCopy {
  public:
   StudyCopy() {
     const auto* info = ::testing::UnitTest::GetInstance()->current_test_info();
-    root_ = fs::temp_directory_path() /
-            ("porofit-safety-" + std::to_string(::getpid()) + "-" + info->name());
+    std::string name = info->name();
+    for (char& ch : name) ch = ch == '/' ? '_' : ch;  // parameterised names hold '/'
+    root_ = fs::temp_directory_path() / ("porofit-safety-" + std::to_string(::getpid()) + "-" + name);
     fs::remove_all(root_);
     fs::create_directories(root_);
     root_ = fs::canonical(root_);  // messages name resolved paths
