@@ -4,11 +4,21 @@
 //   porofit check STUDY.yaml
 //   porofit models [STUDY.yaml]
 //
-// Exit status: 0 success; 2 bad input (study file, data, command line, output
-// location); 3 internal error. A fit that does not converge is a result, not
-// an error. Environment: POROFIT_FIXED_TIMESTAMP (ISO-8601 UTC,
+// Exit status (kExitStatusHelp below, printed by --help):
+//   0  the run completed and at least one fit converged (is usable);
+//   1  the run completed, its report folder is written, but no fit converged;
+//   2  bad input (study file, data, command line) or a refused output location
+//      (an existing folder, one porofit did not write, or one that would harm
+//      an input: porofit/report/output_folder.h); nothing written;
+//   3  internal error; nothing written.
+// A fit that does not converge is a result, reported in every output, not an
+// error. Environment: POROFIT_FIXED_TIMESTAMP (ISO-8601 UTC,
 // "YYYY-MM-DDThh:mm:ssZ") replaces the run's start time in every output, so
-// that runs can be compared byte for byte.
+// that runs can be compared byte for byte. POROFIT_TEST_FAIL_STEP is a test
+// hook: naming a step of the output-folder write ("stage", "sync", "exchange",
+// "rename-in", ...; AtomicFolderOptions::before_step) makes that step fail
+// with an internal error, so tests can check exit status 3 and that a failed
+// run leaves nothing behind.
 #include <boost/program_options.hpp>
 #include <glog/logging.h>
 
@@ -18,7 +28,9 @@
 #include <cstdlib>
 #include <optional>
 #include <filesystem>
+#include <functional>
 #include <iostream>
+#include <stdexcept>
 #include <string>
 #include <string_view>
 #include <vector>
@@ -38,10 +50,18 @@ namespace po = boost::program_options;
 namespace {
 
 constexpr int kExitOk = 0;
+constexpr int kExitNoUsableFit = 1;
 constexpr int kExitInput = 2;
 constexpr int kExitInternal = 3;
 
-const char* kUsage =
+const char* kExitStatusHelp =
+    "exit status:\n"
+    "  0  the run completed and at least one fit converged\n"
+    "  1  the run completed and wrote its report, but no fit converged\n"
+    "  2  bad input (study file, data, command line) or a refused output folder; nothing written\n"
+    "  3  internal error; nothing written\n";
+
+const std::string kUsage = std::string(
     "usage: porofit <command> [options]\n"
     "\n"
     "commands:\n"
@@ -52,7 +72,7 @@ const char* kUsage =
     "options:\n"
     "  -h [ --help ]              show this help (or a command's: porofit fit --help)\n"
     "  --version                  print the version\n"
-    "\n"
+    "\n") + kExitStatusHelp + "\n"
     "Results are decision support only; they must be reviewed by qualified engineers.\n";
 
 // A usage problem the user can fix; message is printed after "porofit: error: ".
@@ -104,6 +124,48 @@ std::string FixedTimestamp() {
   return env;
 }
 
+// POROFIT_TEST_FAIL_STEP (test hook, see the header comment): a step of the
+// output-folder write that throws an internal error.
+std::function<void(std::string_view)> FailStepHook() {
+  const char* env = std::getenv("POROFIT_TEST_FAIL_STEP");
+  if (env == nullptr || *env == '\0') return {};
+  const std::string step = env;
+  return [step](std::string_view s) {
+    if (s == step) throw std::logic_error("test hook POROFIT_TEST_FAIL_STEP: simulated failure at step '" + step + "'");
+  };
+}
+
+void PrintFitHelp(const po::options_description& opts) {
+  std::cout << opts << "\nWrites summary.txt, parameters.csv, fits.csv, residuals.csv, alpha.csv, grain_modulus.csv,\n"
+                          "alpha_vti.csv, results.json, branch_tests.csv, hysteresis.csv, report.html and more\n"
+                          "(see docs/outputs.md). Nothing is written when loading fails.\n"
+                          "\n"
+                          "DIR must be a new folder, or with --overwrite one that porofit wrote (it holds\n"
+                          "a .porofit-output file). Refused: the current folder or its ancestors, a folder\n"
+                          "holding an input, and any folder inside one that holds a data file (the study\n"
+                          "file's own folder is allowed). Inputs are only read.\n"
+                          "\n"
+                       << kExitStatusHelp;
+}
+
+// Prints the summary and what was written; the exit status of a completed run.
+int FinishFit(const porofit::Study& study, const porofit::StreamReportResult& result, const std::string& out_dir,
+              bool quiet) {
+  if (!quiet) {
+    std::cout << result.summary;
+    std::cout << "\nwrote";
+    const auto names = porofit::ReportFileNames(study);
+    for (size_t i = 0; i < names.size(); ++i) std::cout << (i ? ", " : " ") << names[i];
+    std::cout << " to " << out_dir << "\n";
+  }
+  if (result.converged_fits == 0) {
+    std::cerr << "porofit: no usable fit: none of the " << result.fits << " fits converged (see " << out_dir
+              << "/summary.txt); exit status " << kExitNoUsableFit << "\n";
+    return kExitNoUsableFit;
+  }
+  return kExitOk;
+}
+
 int CmdFit(const std::vector<std::string>& args, const std::string& command_line) {
   po::options_description opts("porofit fit STUDY.yaml --out DIR [options]");
   std::string study_path, out_dir;
@@ -111,8 +173,8 @@ int CmdFit(const std::vector<std::string>& args, const std::string& command_line
   int summary_limit = 100;
   opts.add_options()
       ("help,h", "show this help")
-      ("out,o", po::value<std::string>(&out_dir)->required(), "output folder to create (must not exist)")
-      ("overwrite", "replace the output folder if it exists (atomically)")
+      ("out,o", po::value<std::string>(&out_dir)->required(), "output folder: a new one, or with --overwrite one porofit wrote")
+      ("overwrite", "replace the output folder if it exists and porofit wrote it (atomically)")
       ("threads,j", po::value<int>(&threads)->default_value(1), "worker threads over samples (>= 1); output does not depend on it")
       ("summary-limit", po::value<int>(&summary_limit)->default_value(100),
        "samples shown one by one in the summary; beyond, counts per model (full results are in the files)")
@@ -127,9 +189,7 @@ int CmdFit(const std::vector<std::string>& args, const std::string& command_line
   // --help must work without the required arguments.
   for (const std::string& a : args) {
     if (a == "--help" || a == "-h") {
-      std::cout << opts << "\nWrites summary.txt, parameters.csv, fits.csv, residuals.csv, alpha.csv, grain_modulus.csv,\n"
-                              "alpha_vti.csv, results.json, branch_tests.csv and hysteresis.csv "
-                              "(see docs/outputs.md). Nothing is written when loading fails.\n";
+      PrintFitHelp(opts);
       return kExitOk;
     }
   }
@@ -139,12 +199,6 @@ int CmdFit(const std::vector<std::string>& args, const std::string& command_line
   const bool overwrite = vm.count("overwrite") > 0;
   const bool quiet = vm.count("quiet") > 0;
   const std::string timestamp = FixedTimestamp();
-
-  // Fail before fitting if the folder is in the way (checked again when writing).
-  std::error_code ec;
-  if (!overwrite && std::filesystem::exists(std::filesystem::symlink_status(out_dir, ec))) {
-    throw porofit::OutputError("output folder '" + out_dir + "' already exists; pass --overwrite to replace it");
-  }
 
   const porofit::Study study = porofit::LoadStudy(study_path);
   porofit::RunOptions ro;
@@ -156,6 +210,10 @@ int CmdFit(const std::vector<std::string>& args, const std::string& command_line
   // progress on stderr: a bar on a terminal, occasional lines otherwise.
   porofit::AtomicFolderOptions fo;
   fo.overwrite = overwrite;
+  fo.before_step = FailStepHook();
+  // Fail before fitting if the folder is in the way or would harm an input
+  // (checked again when writing).
+  porofit::PrepareOutputFolder(out_dir, porofit::StudyFolderOptions(study, {}, fo));
   porofit::StreamReportOptions so;
   so.summary_sample_limit = static_cast<size_t>(summary_limit);
   porofit::StreamOptions stream;
@@ -169,15 +227,7 @@ int CmdFit(const std::vector<std::string>& args, const std::string& command_line
   }
   const porofit::StreamReportResult result = porofit::RunAndWriteReportFolder(study, ro, out_dir, fo, so, stream);
   if (meter) meter->Finish();
-
-  if (!quiet) {
-    std::cout << result.summary;
-    std::cout << "\nwrote";
-    const auto names = porofit::ReportFileNames(study);
-    for (size_t i = 0; i < names.size(); ++i) std::cout << (i ? ", " : " ") << names[i];
-    std::cout << " to " << out_dir << "\n";
-  }
-  return kExitOk;
+  return FinishFit(study, result, out_dir, quiet);
 }
 
 int CmdCheck(const std::vector<std::string>& args) {

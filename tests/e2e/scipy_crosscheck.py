@@ -16,6 +16,7 @@ import argparse
 import json
 import math
 import os
+import shutil
 import subprocess
 import sys
 
@@ -179,7 +180,10 @@ def main():
     else:
         os.makedirs(args.work, exist_ok=True)
         out = os.path.join(args.work, "out")
-        cmd = [args.porofit, "fit", args.study, "--out", out, "--overwrite", "--quiet"]
+        # The test's own scratch folder: removed first, so that a folder left
+        # by an older build (without the marker --overwrite requires) is no obstacle.
+        shutil.rmtree(out, ignore_errors=True)
+        cmd = [args.porofit, "fit", args.study, "--out", out, "--quiet"]
         proc = subprocess.run(cmd, capture_output=True, text=True)
         if proc.returncode != 0:
             print(f"FAIL: {' '.join(cmd)} exited {proc.returncode}\n{proc.stderr}", file=sys.stderr)

@@ -9,6 +9,7 @@
 #include "fixture.h"
 #include "porofit/report/report.h"
 #include "porofit/report/sha256.h"
+#include "porofit_test/folder_snapshot.h"
 
 namespace porofit {
 namespace {
@@ -157,6 +158,30 @@ TEST(ReportFolder, UnreadableInputLeavesNoFolder) {
   run.study.inputs = {{(root / "gone.yaml").string(), "study"}};
   EXPECT_THROW(WriteReportFolder(run, root / "out"), InputError);
   EXPECT_FALSE(fs::exists(root / "out"));
+  fs::remove_all(root);
+}
+
+// Library callers get the location rule too: WriteReportFolder refuses a
+// folder that would harm the study's inputs, whatever options they pass.
+TEST(ReportFolder, RefusesAFolderThatWouldHarmTheStudysInputs) {
+  namespace fs = std::filesystem;
+  const fs::path root = fs::temp_directory_path() / "porofit-report-folder-harm-test";
+  fs::remove_all(root);
+  fs::create_directories(root / "data");
+  StudyRun run = testing::HandBuiltRun();
+  run.study.path = (root / "study.yaml").string();
+  { std::ofstream(run.study.path) << "name: x\n"; }
+  { std::ofstream(root / "data" / "a.csv") << "P,K\n"; }
+  run.study.inputs = {{run.study.path, "study"}, {(root / "data" / "a.csv").string(), "data"}};
+  const auto before = test::SnapshotFolder(root);
+  AtomicFolderOptions o;
+  o.overwrite = true;
+  for (const fs::path& out : {root / "data", root / "data" / "out", root}) {
+    EXPECT_THROW(WriteReportFolder(run, out, o), OutputError) << out;
+    EXPECT_EQ(test::SnapshotFolder(root), before) << out;
+  }
+  WriteReportFolder(run, root / "out", o);  // next to the study file: allowed
+  EXPECT_TRUE(fs::exists(root / "out" / kOutputMarkerName));
   fs::remove_all(root);
 }
 

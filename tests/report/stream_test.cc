@@ -10,6 +10,7 @@
 #include <stdexcept>
 
 #include "porofit/io/study_loader.h"
+#include "porofit_test/folder_snapshot.h"
 
 namespace porofit {
 namespace {
@@ -49,7 +50,9 @@ TEST(StreamingReport, WritesTheSameBytesAsTheWholeRunWriters) {
   const StreamReportResult r = RunAndWriteReportFolder(SampleStudy(), Fixed(2), b, {}, {}, window);
   // The sample study has a depth table: its file is compared too.
   ASSERT_FALSE(SampleStudy().depth_tables.empty());
-  for (const std::string& f : ReportFileNames(SampleStudy())) {
+  std::vector<std::string> files = ReportFileNames(SampleStudy());
+  files.push_back(kOutputMarkerName);  // the same run stamp in both
+  for (const std::string& f : files) {
     if (f == "results.json") continue;
     ASSERT_TRUE(fs::exists(b / f)) << f;
     EXPECT_EQ(Slurp(a / f), Slurp(b / f)) << f;
@@ -96,6 +99,37 @@ TEST(StreamingReport, FailureWhileWritingLeavesNoFolder) {
   EXPECT_FALSE(fs::exists(b));
   for (const auto& e : fs::directory_iterator(b.parent_path()))
     EXPECT_EQ(e.path().filename().string().find(b.filename().string()), std::string::npos) << e.path();
+}
+
+TEST(StreamingReport, CountsTheFitsAndTheConvergedOnes) {
+  const fs::path b = Scratch("counts");
+  const StreamReportResult r = RunAndWriteReportFolder(SampleStudy(), Fixed(1), b);
+  size_t requested = 0;
+  for (const StudySample& ss : SampleStudy().samples) requested += ss.models.size();
+  EXPECT_EQ(r.fits, requested);
+  EXPECT_GT(r.converged_fits, 0u);
+  EXPECT_LE(r.converged_fits, r.fits);
+  fs::remove_all(b);
+}
+
+// The location rule holds before any fitting: a folder inside the sample
+// study's data folder is refused and nothing there changes.
+TEST(StreamingReport, RefusesAnOutputInsideTheDataFolderBeforeFitting) {
+  const fs::path data = fs::path(POROFIT_SOURCE_DIR) / "samples" / "data";
+  const auto before = test::SnapshotFolder(data);
+  StreamOptions stream;
+  bool fitted = false;
+  stream.progress = [&](size_t, size_t) { fitted = true; };
+  try {
+    RunAndWriteReportFolder(SampleStudy(), Fixed(1), data / "out", {}, {}, stream);
+    FAIL() << "expected OutputError";
+  } catch (const OutputError& e) {
+    EXPECT_NE(std::string(e.what()).find("lies inside '" + fs::weakly_canonical(data).string() + "'"),
+              std::string::npos)
+        << e.what();
+  }
+  EXPECT_FALSE(fitted);
+  EXPECT_EQ(test::SnapshotFolder(data), before);
 }
 
 }  // namespace

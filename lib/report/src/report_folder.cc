@@ -17,6 +17,19 @@ std::vector<InputDigest> DigestInputs(const Study& study) {
   return out;
 }
 
+std::vector<ProtectedInput> ProtectedInputs(const Study& study) {
+  std::vector<ProtectedInput> out;
+  out.reserve(study.inputs.size());
+  for (const InputFile& f : study.inputs) out.push_back({f.path, f.role != "study"});
+  return out;
+}
+
+AtomicFolderOptions StudyFolderOptions(const Study& study, const RunMetadata& metadata, AtomicFolderOptions options) {
+  for (ProtectedInput& in : ProtectedInputs(study)) options.protected_inputs.push_back(std::move(in));
+  if (options.run_stamp.empty()) options.run_stamp = metadata.started_utc;
+  return options;
+}
+
 std::vector<std::string> ReportFileNames() {
   return {"summary.txt", "parameters.csv", "fits.csv",          "residuals.csv",
           "alpha.csv",   "grain_modulus.csv", "alpha_vti.csv", "moduli.csv", "strain_residuals.csv",
@@ -38,6 +51,7 @@ void WriteReportFolder(const StudyRun& run, const std::filesystem::path& folder,
   // Digest before writing anything: an unreadable input stops the run with
   // nothing on disk.
   const std::vector<InputDigest> inputs = DigestInputs(run.study);
+  const AtomicFolderOptions checked = StudyFolderOptions(run.study, run.metadata, folder_options);
   WriteFolderAtomically(
       folder,
       [&](const std::filesystem::path& staging) {
@@ -70,7 +84,7 @@ void WriteReportFolder(const StudyRun& run, const std::filesystem::path& folder,
         emit("report.html", [&](std::ostream& o) { WriteHtmlReport(run, inputs, o, &figures, options); });
         WriteHtmlFigureFiles(staging, figures);
       },
-      folder_options);
+      checked);
 }
 
 }  // namespace porofit

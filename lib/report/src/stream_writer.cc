@@ -134,6 +134,8 @@ class StreamWriter {
     if (!ss.sample.plug.empty() || UsedByDepthTables(study_, i)) kept_fits_.emplace(i, sr.fits);
   }
 
+  const SummaryCounts& counts() const { return counts_; }
+
   std::string Finish() {
     // The across-sample results, exactly as RunStudy() computes them: the
     // comparison summary from the accumulator, the branch tests from the kept
@@ -318,6 +320,8 @@ StreamReportResult RunAndWriteReportFolder(const Study& study, const RunOptions&
   result.metadata = StartRunMetadata(run_options);
   // The same catalogue RunStudyStreaming() fits with: built-ins plus the study's user models.
   const auto catalogue = std::make_shared<const ModelRegistry>(StudyRegistry(study, run_options.registry));
+  // Checked (location, stale staging, existing folder) before any fitting.
+  const AtomicFolderOptions checked = StudyFolderOptions(study, result.metadata, folder_options);
   WriteFolderAtomically(
       folder,
       [&](const fs::path& staging) {
@@ -331,8 +335,10 @@ StreamReportResult RunAndWriteReportFolder(const Study& study, const RunOptions&
             study, run_options, [&](size_t i, SampleRun&& sr) { writer.Add(i, sr); }, with_render,
             &result.metadata);
         result.summary = writer.Finish();
+        result.fits = writer.counts().fits;
+        result.converged_fits = writer.counts().converged;
       },
-      folder_options);
+      checked);
   return result;
 }
 

@@ -47,6 +47,16 @@ struct InputDigest {
 /// cannot be read.
 std::vector<InputDigest> DigestInputs(const Study& study);
 
+/// Every Study::inputs entry as a ProtectedInput (role "study": data = false;
+/// "data": data = true), for CheckOutputLocation (output_folder.h).
+std::vector<ProtectedInput> ProtectedInputs(const Study& study);
+
+/// `options` with the study's inputs appended to protected_inputs and, when
+/// run_stamp is empty, the run's start time (metadata.started_utc) as the
+/// marker's run stamp. Every report-folder writer passes its options through
+/// this, so no caller can write an output folder over the study's inputs.
+AtomicFolderOptions StudyFolderOptions(const Study& study, const RunMetadata& metadata, AtomicFolderOptions options);
+
 struct ReportOptions {
   /// Catalogue for model titles, formulas and references. nullptr: the run's
   /// own (StudyRun::registry: built-ins plus the study's user models), else Builtin().
@@ -139,7 +149,8 @@ std::vector<std::string> ReportFileNames();
 std::vector<std::string> ReportFileNames(const Study& study);
 
 /// Digests the inputs and writes every report file into `folder` atomically
-/// (WriteFolderAtomically). Throws OutputError / InputError; on failure no
+/// (WriteFolderAtomically, with StudyFolderOptions: a folder that would harm
+/// an input is refused). Throws OutputError / InputError; on failure no
 /// partial folder remains.
 void WriteReportFolder(const StudyRun& run, const std::filesystem::path& folder,
                        const AtomicFolderOptions& folder_options = {}, const ReportOptions& options = {});

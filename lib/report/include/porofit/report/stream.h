@@ -89,12 +89,15 @@ struct StreamReportOptions {
 struct StreamReportResult {
   RunMetadata metadata;  ///< with wall_seconds
   std::string summary;   ///< the text written to summary.txt
+  size_t fits = 0;            ///< per-sample fits run (sample x model)
+  size_t converged_fits = 0;  ///< of those, status converged (usable; flags may still apply)
 };
 
 /// Digests the inputs (before anything is written), then runs the study and
 /// writes every file of ReportFileNames() into `folder` as samples finish.
-/// Throws OutputError / InputError like WriteReportFolder(); on failure no
-/// partial folder remains.
+/// The folder is checked (StudyFolderOptions, PrepareOutputFolder) before
+/// any fitting. Throws OutputError / InputError like WriteReportFolder(); on
+/// failure no partial folder remains.
 StreamReportResult RunAndWriteReportFolder(const Study& study, const RunOptions& run_options,
                                            const std::filesystem::path& folder,
                                            const AtomicFolderOptions& folder_options = {},
