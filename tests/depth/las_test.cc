@@ -1,8 +1,8 @@
-// The LAS 2.0 reader and the density profile built from a LAS density curve.
+// The LAS reader and the density profile built from a LAS density curve.
 // Rules checked here come from the LAS 2.0 standard of the Canadian Well
-// Logging Society (sections ~V, ~W, ~C, ~A; header-line delimiters) as
-// summarised in the domain brief §6 "LAS 2.0"; the profile rules (bridging,
-// bad-hole screen, fill) from the domain brief §6 "Vertical stress". All well
+// Logging Society (sections ~V, ~W, ~C, ~A; header-line delimiters); the
+// profile rules (bridging, bad-hole screen, fill) are those of docs/las.md.
+// Field-file quirks (LAS 1.2, warnings) are in las_field_test.cc. All well
 // data below are invented for the tests.
 #include "porofit/depth/las.h"
 
@@ -119,7 +119,7 @@ LasSpec DensityLas(double z0, double z1, double dz, const std::function<double(d
 
 TEST(DensityLog, LinearDensityFromAFileIntegratesToTheAnalyticVerticalStress) {
   // rho(z) = 1900 + 0.25 (z - z0) kg/m^3: S_v = g (1900 h + 0.125 h^2) [calculus; the
-  // trapezoid rule is exact on a linear profile, domain brief §6 "Vertical stress"].
+  // trapezoid rule is exact on a linear profile].
   const double z0 = 300.0;
   TempDir dir;
   const std::string path =
@@ -241,7 +241,7 @@ bool HasNote(const DensityProfile& p, const std::string& fragment) {
 
 TEST(DensityLog, BridgesNullsScreensBadHoleFillsAboveTheTopAndSaysSo) {
   // Rows every 1 m from 100 to 110 m; NULL at 102-103, |DRHO| 0.15 g/cc at 106 (> 0.1 g/cc
-  // screen, domain brief §6 [from memory there]), trailing NULLs at 109-110.
+  // screen, a common practice limit), trailing NULLs at 109-110.
   LasSpec s;
   s.step = 1.0;
   s.names = {"DEPT", "RHOB", "DRHO"};
@@ -526,54 +526,35 @@ TEST(LasReader, TheGoodTemplateParses) {
 }
 
 TEST(LasReader, MalformedFilesReportFileLineAndRule) {
-  // Each rule: LAS 2.0 standard (CWLS) as summarised in the domain brief §6 "LAS 2.0".
+  // Each rule: LAS 1.2 / 2.0 standards (CWLS) and docs/las.md, "Errors".
   const std::vector<Malformed> cases = {
       {"missing ~V", [](auto& l) { Erase(l, 1, 1); }, 1, 0, "text before the ~V section"},
       {"~V not first", [](auto& l) { std::rotate(l.begin(), l.begin() + 3, l.begin() + 9); }, 1, 0,
        "~V must be the first section, found ~W"},
-      {"VERS 1.2", [](auto& l) { Set(l, 2, "VERS.   1.2 : CWLS LOG ASCII STANDARD - VERSION 1.2"); }, 2, 0,
-       "only LAS 2.0 files are read"},
+      {"VERS 1.0", [](auto& l) { Set(l, 2, "VERS.   1.0 : CWLS LOG ASCII STANDARD - VERSION 1.0"); }, 2, 0,
+       "only LAS 1.2 and 2.0 files are read"},
       {"VERS 3.0", [](auto& l) { Set(l, 2, "VERS.   3.0 : CWLS LOG ASCII STANDARD - VERSION 3.0"); }, 2, 0,
-       "only LAS 2.0 files are read"},
+       "LAS 3.0 files are not read"},
       {"WRAP missing", [](auto& l) { Erase(l, 3, 3); }, 1, 0, "~V has no WRAP line"},
       {"WRAP MAYBE", [](auto& l) { Set(l, 3, "WRAP.   MAYBE : ?"); }, 3, 0, "WRAP = MAYBE must be YES or NO"},
       {"missing ~A", [](auto& l) { Erase(l, 18, 21); }, 17, 0, "no ~A section"},
       {"section after ~A", [](auto& l) { l.push_back("~OTHER"); }, 22, 0, "section ~O after ~A"},
       {"duplicate ~C", [](auto& l) { Set(l, 16, "~C"); }, 16, 0,
-       "second ~C section (each section appears at most once; the first is at line 10)"},
-      {"non-numeric value", [](auto& l) { Set(l, 20, "1000.5 2.3x 0.02"); }, 20, 8, "value '2.3x' in ~A is not a number"},
+       "second ~C section (the first is at line 10); ~V, ~W and ~C appear once"},
+      {"non-numeric index", [](auto& l) { Set(l, 20, "1000.5x 2.31 0.02"); }, 20, 1,
+       "index value '1000.5x' in ~A is not a number"},
+      {"NULL not a number", [](auto& l) { Set(l, 8, "NULL.    none : NULL VALUE"); }, 8, 0, "NULL = none is not a number"},
+      {"index unit not a length", [](auto& l) { Set(l, 11, "DEPT.API  : DEPTH"); }, 11, 0,
+       "index curve DEPT unit 'API' is not a length"},
       {"wrong column count", [](auto& l) { Set(l, 20, "1000.5 2.31"); }, 20, 0,
        "row has 2 values but ~C declares 3 curves"},
       {"index not monotonic", [](auto& l) { Set(l, 21, "1000.5 2.32 0.01"); }, 21, 0,
        "index 1000.5 does not increase from 1000.5 (line 20); the index must be strictly monotonic"},
-      {"STRT disagrees", [](auto& l) { Set(l, 5, "STRT.M   999.0 : START DEPTH"); }, 5, 0,
-       "STRT = 999.0 disagrees with the first index value 1000 (line 19)"},
-      {"unit mismatch", [](auto& l) {
-         Set(l, 5, "STRT.F   1000.0 : START DEPTH");
-         Set(l, 6, "STOP.F   1001.0 : STOP DEPTH");
-         Set(l, 7, "STEP.F   0.5 : STEP");
-       }, 11, 0, "index curve unit M differs from STRT/STOP/STEP unit F (line 5)"},
       {"missing NULL", [](auto& l) { Erase(l, 8, 8); }, 4, 0, "~W has no NULL line"},
-      {"wrapped line over 80", [](auto& l) {
-         Set(l, 3, "WRAP.   YES : WRAPPED");
-         Set(l, 19, "1000.0");
-         Set(l, 20, "2.30" + std::string(80, ' ') + "0.01");
-         Set(l, 21, "1000.5");
-         l.push_back("2.31 0.02");
-         l.push_back("1001.0");
-         l.push_back("2.32 0.01");
-       }, 20, 0, "line is 88 characters long; wrapped LAS data lines are at most 80"},
       {"index not alone when wrapped", [](auto& l) { Set(l, 3, "WRAP.   YES : WRAPPED"); }, 19, 8,
        "in a wrapped file the index is alone on its line"},
-      {"LAS 1.2 value after the colon", [](auto& l) { Set(l, 5, "STRT.M       : 1000.0"); }, 5, 0,
-       "STRT has its value after the colon, as LAS 1.2 writes it"},
       {"time index", [](auto& l) { Set(l, 11, "TIME.S    : TIME"); }, 11, 0,
        "index curve TIME is time; a depth index (DEPT or DEPTH) is needed"},
-      {"off the STEP grid", [](auto& l) { Set(l, 7, "STEP.M   0.25 : STEP"); }, 20, 1, "is off the regular STEP = 0.25"},
-      {"header line without colon", [](auto& l) { Set(l, 9, "WELL.    INVENTED WELL 1"); }, 9, 0,
-       "header line for WELL has no ':'"},
-      {"duplicate STRT", [](auto& l) { Set(l, 9, "STRT.M   1000.0 : AGAIN"); }, 9, 0,
-       "STRT appears twice in ~W (first at line 5)"},
       {"index is NULL", [](auto& l) { Set(l, 21, "-999.25 2.32 0.01"); }, 21, 1, "index value -999.25 is the NULL value"},
   };
   for (size_t i = 0; i < cases.size(); ++i) {
@@ -593,6 +574,85 @@ TEST(LasReader, MalformedFilesReportFileLineAndRule) {
       EXPECT_NE(what.find(c.rule), std::string::npos) << c.name << ": " << what;
     }
   }
+}
+
+// Departures that were errors before the reader took field files and now
+// warn, because the data govern and no number read changes: the curves equal
+// the good template's and the warning names the line and both values.
+TEST(LasReader, DeparturesThatChangeNoNumberWarnAtTheirLine) {
+  struct Departure {
+    const char* name;
+    std::function<void(std::vector<std::string>&)> edit;
+    int line;
+    const char* warning;
+  };
+  const std::vector<Departure> cases = {
+      {"STRT disagrees", [](auto& l) { Set(l, 5, "STRT.M   999.0 : START DEPTH"); }, 5,
+       "STRT = 999.0 disagrees with the first index value 1000 (line 19); the data govern"},
+      {"unit mismatch", [](auto& l) {
+         Set(l, 5, "STRT.F   3280.84 : START DEPTH");
+         Set(l, 6, "STOP.F   3282.48 : STOP DEPTH");
+         Set(l, 7, "STEP.F   1.64 : STEP");
+       }, 5, "STRT unit F differs from the index unit M; converted to compare"},
+      {"wrapped line over 80", [](auto& l) {
+         Set(l, 3, "WRAP.   YES : WRAPPED");
+         Set(l, 19, "1000.0");
+         Set(l, 20, "2.30" + std::string(80, ' ') + "0.01");
+         Set(l, 21, "1000.5");
+         l.push_back("2.31 0.02");
+         l.push_back("1001.0");
+         l.push_back("2.32 0.01");
+       }, 20, "1 wrapped data line(s) longer than 80 characters (the first 88); read anyway"},
+      {"LAS 1.2 value after the colon", [](auto& l) { Set(l, 5, "STRT.M       : 1000.0"); }, 5,
+       "STRT written after the colon (as some LAS 1.2 writers do); read as 1000"},
+      {"off the STEP grid", [](auto& l) { Set(l, 7, "STEP.M   0.25 : STEP"); }, 20,
+       "index 1000.5 is off the regular STEP = 0.25 (line 7) grid, which expects 1000.25; the data govern"},
+      {"header line without colon", [](auto& l) { Set(l, 9, "WELL.    INVENTED WELL 1"); }, 9,
+       "header line for WELL has no ':' after the data; read with no description"},
+      {"duplicate STRT", [](auto& l) { Set(l, 9, "STRT.M   1000.0 : AGAIN"); }, 9,
+       "STRT appears twice in ~W; the first, at line 5, is read"},
+      {"missing STOP", [](auto& l) { Set(l, 6, "# no STOP"); }, 4, "~W has no STOP line; the data govern"},
+  };
+  const LasFile good = ParseLas(Join(kGood), "good.las");
+  EXPECT_TRUE(good.warnings.empty());
+  for (const Departure& c : cases) {
+    std::vector<std::string> lines = kGood;
+    c.edit(lines);
+    const LasFile las = ParseLas(Join(lines), "departure.las");
+    ASSERT_EQ(las.curves.size(), good.curves.size()) << c.name;
+    for (size_t k = 0; k < las.curves.size(); ++k) EXPECT_EQ(las.curves[k].values, good.curves[k].values) << c.name;
+    bool found = false;
+    std::string all;
+    for (const LasWarning& w : las.warnings) {
+      found = found || (w.where.line == c.line && w.message.find(c.warning) != std::string::npos);
+      all += "\n  " + w.ToString();
+    }
+    EXPECT_TRUE(found) << c.name << ":" << all;
+  }
+}
+
+// A non-number in a curve is kept with that curve: an error, at its line and
+// column, only where the curve is used.
+TEST(LasReader, NonNumberIsAnErrorOnlyWhereItsCurveIsUsed) {
+  std::vector<std::string> lines = kGood;
+  Set(lines, 20, "1000.5 2.3x 0.02");
+  const LasFile las = ParseLas(Join(lines), "bad-value.las");
+  EXPECT_EQ(las.curves[1].bad_count, 1u);
+  EXPECT_TRUE(std::isnan(las.curves[1].values[1]));
+  DensityLogSpec spec;
+  spec.rock_top = 1000.0;
+  try {
+    BuildDensityProfile(las, spec);
+    FAIL();
+  } catch (const InputError& e) {
+    EXPECT_EQ(std::string(e.what()).rfind("bad-value.las:20:8: error: value '2.3x' of the density curve RHOB", 0), 0u)
+        << e.what();
+  }
+  const CurveSeries drho = ExtractCurve(las, "DRHO");
+  ASSERT_EQ(drho.warnings.size(), 1u);
+  EXPECT_EQ(drho.warnings[0],
+            "bad-value.las:20:8: warning: curve RHOB holds 1 value(s) that are not numbers (the first, '2.3x'); not "
+            "used, so not read");
 }
 
 TEST(DensityLog, MissingOrNonDensityCurveNamesTheCurveSectionLine) {

@@ -8,6 +8,8 @@
 #include <fstream>
 #include <random>
 #include <string>
+#include <tuple>
+#include <vector>
 
 #include "porofit/core/units.h"
 #include "porofit/io/study_loader.h"
@@ -230,6 +232,52 @@ TEST(DepthTablesSection, DensityLogIsReadRelativeToTheStudyAndRecordedAsAnInput)
   EXPECT_TRUE(recorded);
 }
 
+TEST(DepthTablesSection, LasWarningsReachTheTableAndThePlausibleRangeKeysAreRead) {
+  Scratch dir;
+  const std::string las = dir.Write("well.las", Replace(DensityLas(), " STOP.M  3100.0 :", " STOP.M  3000.0 :"));
+  // RHOB runs 2.1 -> 2.5 g/cc: with [2.2, 3.0] g/cc the samples at 1000 to 1500 m lie below the range.
+  const std::string text =
+      Replace(kBase, "{gradient: 1.0 psi/ft}",
+              "{log: {file: well.las, curve: RHOB, index_offset: 0 m, plausible_range: [2.2 g/cc, 3.0 g/cc], "
+              "outside_range: keep}}");
+  const Study s = ParseStudy(text, dir.Study(), ModelRegistry::Builtin());
+  const depth::DepthTableSpec& t = s.depth_tables[0].spec;
+  ASSERT_EQ(t.warnings.size(), 2u);
+  EXPECT_EQ(t.warnings[0].rfind(las + ":6: warning: STOP = 3000.0 disagrees with the last index value 3100", 0), 0u)
+      << t.warnings[0];
+  EXPECT_EQ(t.warnings[1].rfind(las + ":17: warning: 5 RHOB sample(s) outside the plausible range 2.2 g/cc to 3 g/cc", 0),
+            0u)
+      << t.warnings[1];
+  EXPECT_NE(t.warnings[1].find("kept as measured"), std::string::npos) << t.warnings[1];
+  EXPECT_EQ(t.overburden.profile.source.front(), depth::DensitySource::kOutOfRangeKept);
+
+  // By default (1.0 to 3.3 g/cc, screen) a 0.5 g/cc sample at 1500 m is rejected and bridged.
+  dir.Write("well.las", Replace(DensityLas(), "1500.000000 -999.250000", "1500.000000 0.500000"));
+  const Study d = ParseStudy(Replace(text, ", plausible_range: [2.2 g/cc, 3.0 g/cc], outside_range: keep", ""),
+                             dir.Study(), ModelRegistry::Builtin());
+  ASSERT_EQ(d.depth_tables[0].spec.warnings.size(), 1u);
+  EXPECT_NE(d.depth_tables[0].spec.warnings[0].find(":22: warning: 1 RHOB sample(s) outside the plausible range 1 g/cc "
+                                                    "to 3.3 g/cc"),
+            std::string::npos)
+      << d.depth_tables[0].spec.warnings[0];
+  EXPECT_EQ(d.depth_tables[0].spec.overburden.profile.source[5], depth::DensitySource::kOutOfRange);
+
+  for (const auto& [from, to, message] : std::vector<std::tuple<std::string, std::string, std::string>>{
+           {"[2.2 g/cc, 3.0 g/cc]", "[3.0 g/cc, 2.2 g/cc]", "must have 0 < min < max"},
+           {"[2.2 g/cc, 3.0 g/cc]", "[2.2 g/cc]", "must be a pair [min, max] of densities"},
+           {"[2.2 g/cc, 3.0 g/cc]", "[2.2 g/cc, 3.0 MPa]", "plausible_range[2]"},
+           {"outside_range: keep", "outside_range: drop", "is not one of screen, keep"}}) {
+    try {
+      ParseStudy(Replace(text, from, to), dir.Study(), ModelRegistry::Builtin());
+      ADD_FAILURE() << to << ": loaded";
+    } catch (const InputError& e) {
+      EXPECT_EQ(e.location().file, dir.Study()) << e.what();
+      EXPECT_EQ(e.location().line, 24) << e.what();
+      EXPECT_NE(e.message().find(message), std::string::npos) << e.what();
+    }
+  }
+}
+
 TEST(DepthTablesSection, MissingLasFileIsReportedAtItsKey) {
   Scratch dir;
   const std::string text = Replace(kBase, "{gradient: 1.0 psi/ft}",
@@ -247,7 +295,7 @@ TEST(DepthTablesSection, MissingLasFileIsReportedAtItsKey) {
 TEST(DepthTablesSection, BadLasFilePassesItsOwnErrorThrough) {
   Scratch dir;
   std::string las = DensityLas();
-  las = Replace(las, " STRT.M  1000.0 : START DEPTH\n", "");
+  las = Replace(las, " NULL.   -999.25 : NULL VALUE\n", "");
   const std::string path = dir.Write("well.las", las);
   const std::string text = Replace(kBase, "{gradient: 1.0 psi/ft}",
                                    "{log: {file: well.las, curve: RHOB, index_offset: 0 m}}");
@@ -257,7 +305,7 @@ TEST(DepthTablesSection, BadLasFilePassesItsOwnErrorThrough) {
   } catch (const InputError& e) {
     EXPECT_EQ(fs::path(e.location().file).filename(), "well.las") << e.what();
     EXPECT_EQ(e.location().line, 4) << e.what();  // the ~W line
-    EXPECT_NE(e.message().find("STRT"), std::string::npos) << e.message();
+    EXPECT_NE(e.message().find("~W has no NULL line"), std::string::npos) << e.message();
   }
 }
 

@@ -9,6 +9,7 @@
 
 #include "fixture.h"
 #include "porofit/core/units.h"
+#include "porofit/report/html.h"
 #include "porofit/report/report.h"
 
 namespace porofit {
@@ -213,6 +214,35 @@ TEST(DepthTableSummary, ShowsRangeDefinitionAlphaRangeAndFlaggedRows) {
   EXPECT_NE(s.find("  flagged rows 2 of 2 (below-lab-range 1, unmapped 1)"), std::string::npos) << s;
   EXPECT_NE(s.find("  depletion '10 MPa drawdown': alpha 0.55 to 0.55"), std::string::npos) << s;
   EXPECT_NE(s.find("qualified geomechanics or petroleum engineers"), std::string::npos);
+}
+
+// The input warnings of a table (from the LAS reader) reach every output that shows the table.
+TEST(DepthTableWarnings, AppearInTheCsvHeaderJsonSummaryAndReport) {
+  const std::vector<std::string> warnings = {
+      "well.las:6: warning: STOP = 3000.0 disagrees with the last index value 3100 (line 38); the data govern",
+      "well.las:1:1: warning: UTF-8 byte-order mark at the start of the file skipped"};
+  for (const bool computed : {true, false}) {
+    StudyRun run = WithDepthTable(DepthUnits::kSi, BandConvention::kNonExceedance, computed);
+    run.study.depth_tables[0].spec.warnings = warnings;
+    run.depth_tables[0].table.spec.warnings = warnings;
+    std::ostringstream csv, summary;
+    WriteDepthTableCsv(run, 0, csv);
+    WriteSummary(run, summary);
+    const nlohmann::ordered_json j = ResultsJson(run, {});
+    for (const std::string& w : warnings) {
+      EXPECT_TRUE(HasLine(csv.str(), "# " + w)) << csv.str();
+      EXPECT_NE(summary.str().find("  " + w + "\n"), std::string::npos) << summary.str();
+    }
+    EXPECT_EQ(j["depth_tables"][0]["warnings"], warnings);
+  }
+  const StudyRun run = WithDepthTable(DepthUnits::kSi, BandConvention::kNonExceedance);
+  depth::DepthTable table = run.depth_tables[0].table;
+  table.spec.warnings = warnings;
+  const std::string html = RenderDepthTableSection(table, false);
+  EXPECT_NE(html.find("2 input warning(s)"), std::string::npos) << html;
+  EXPECT_NE(html.find("<li>well.las:6: warning: STOP = 3000.0 disagrees"), std::string::npos) << html;
+  table.spec.warnings.clear();
+  EXPECT_EQ(RenderDepthTableSection(table, false).find("input warning"), std::string::npos);
 }
 
 TEST(DepthTableFiles, ReportFileNamesListTheTablesBeforeResultsJson) {

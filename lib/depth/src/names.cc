@@ -12,6 +12,8 @@ std::string_view ToString(DensitySource s) {
     case DensitySource::kBridged: return "bridged";
     case DensitySource::kFilled: return "filled";
     case DensitySource::kBadHole: return "bad-hole";
+    case DensitySource::kOutOfRange: return "out-of-range";
+    case DensitySource::kOutOfRangeKept: return "out-of-range-kept";
   }
   return "unknown";
 }
@@ -33,7 +35,7 @@ std::string FlagsToString(std::uint32_t flags) {
   static constexpr const char* kNames[] = {
       "below-lab-range", "above-lab-range", "log-gap", "log-fill", "alpha-outside-bounds",
       "fixed-point-not-converged", "unmapped", "non-positive-effective-stress", "in-water", "model-undefined",
-      "negative-pore-pressure"};
+      "negative-pore-pressure", "log-density-range"};
   std::string out;
   for (std::uint32_t bit = 0; bit < sizeof(kNames) / sizeof(kNames[0]); ++bit) {
     if ((flags & (1u << bit)) == 0) continue;

@@ -168,7 +168,9 @@ Overburden ComputeOverburden(const DepthTableSpec& spec, const std::vector<doubl
         out.vertical_stress[i] += load[i - first_rock + 1] - load[0];
         const std::uint8_t s = sources.SourcesAbove(depth[i]);
         const auto has = [s](DensitySource k) { return (s & (1u << static_cast<unsigned>(k))) != 0; };
-        if (has(DensitySource::kBridged) || has(DensitySource::kBadHole)) out.flags[i] |= kLogGap;
+        if (has(DensitySource::kBridged) || has(DensitySource::kBadHole) || has(DensitySource::kOutOfRange))
+          out.flags[i] |= kLogGap;
+        if (has(DensitySource::kOutOfRange) || has(DensitySource::kOutOfRangeKept)) out.flags[i] |= kLogDensityRange;
         if (has(DensitySource::kFilled)) out.flags[i] |= kLogFill;
       }
       break;

@@ -239,7 +239,7 @@ DepthTable BuildDepthTable(const DepthTableSpec& spec) {
     if (scenarios == 0) continue;
     r.depletion.resize(scenarios);
     // Flags that do not depend on the pore pressure carry over to each scenario.
-    const std::uint32_t carried = r.flags & (kLogGap | kLogFill | kUnmapped | kInWater);
+    const std::uint32_t carried = r.flags & (kLogGap | kLogFill | kLogDensityRange | kUnmapped | kInWater);
     for (size_t k = 0; k < scenarios; ++k) {
       DepletionValues& v = r.depletion[k];
       v.pore_pressure = r.pore_pressure - spec.depletion[k].drop;

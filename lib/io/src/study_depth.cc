@@ -131,6 +131,32 @@ void ReadSurvey(const Field& f, const std::string& file, std::vector<double>& md
   }
 }
 
+// Appends the warnings not already there (two references to one LAS file give
+// the same file-level warnings once).
+void AddWarnings(std::vector<std::string>& to, const std::vector<std::string>& from) {
+  for (const std::string& w : from)
+    if (std::find(to.begin(), to.end(), w) == to.end()) to.push_back(w);
+}
+
+// `plausible_range` ([min, max] densities) and `outside_range` (screen or keep)
+// of a density log; defaults 1.0 to 3.3 g/cc, screen.
+void ReadPlausibleRange(const Field& range, const Field& outside, const std::string& file,
+                        depth::DensityLogSpec& spec) {
+  if (range) {
+    range.ExpectList();
+    if (range.node.size() != 2)
+      throw InputError(range.at, Quote(range.path) + " must be a pair [min, max] of densities (e.g. [1.0 g/cc, 3.3 g/cc])");
+    const double lo = QtyNode(range.node[0], file, range.path + "[1]", Quantity::kDensity);
+    const double hi = QtyNode(range.node[1], file, range.path + "[2]", Quantity::kDensity);
+    if (!(lo > 0 && hi > lo))
+      throw InputError(range.at, Quote(range.path) + " = [" + FormatNumber(lo / 1000) + ", " + FormatNumber(hi / 1000) +
+                                     "] g/cc must have 0 < min < max");
+    spec.plausible_min = lo;
+    spec.plausible_max = hi;
+  }
+  if (outside) spec.screen_implausible = ParseChoice<bool>(outside, {{"screen", true}, {"keep", false}});
+}
+
 // The common keys of a log reference: file, curve, index_offset, survey.
 struct LogRef {
   std::string path, name, curve;
@@ -238,7 +264,8 @@ depth::OverburdenSpec ReadOverburden(const Field& f, const std::string& file, co
   // Density log.
   MapReader l(log.node, file, Quote(log.path), log.path);
   Field lfile = l.Get("file"), curve = l.Get("curve"), offset = l.Get("index_offset"), survey = l.Get("survey"),
-        correction = l.Get("correction_curve"), limit = l.Get("correction_limit"), fill = l.Get("fill_above");
+        correction = l.Get("correction_curve"), limit = l.Get("correction_limit"), fill = l.Get("fill_above"),
+        range = l.Get("plausible_range"), outside = l.Get("outside_range");
   l.Finish();
   if (correction && !limit)
     throw InputError(correction.key_at, "'correction_curve' needs 'correction_limit' (e.g. 0.1 g/cc)");
@@ -255,6 +282,7 @@ depth::OverburdenSpec ReadOverburden(const Field& f, const std::string& file, co
     spec.correction_curve = correction.Scalar();
     spec.correction_limit = Positive(limit, Quantity::kDensity);
   }
+  ReadPlausibleRange(range, outside, file, spec);
   if (fill) {
     fill.ExpectList();
     if (fill.node.size() == 0) throw InputError(fill.at, Quote(fill.path) + " is empty");
@@ -290,7 +318,7 @@ depth::OverburdenSpec ReadOverburden(const Field& f, const std::string& file, co
 }
 
 depth::PorePressureSpec ReadPorePressure(const Field& f, const std::string& file, const depth::DepthTableSpec& t,
-                                         std::vector<InputFile>& inputs) {
+                                         std::vector<InputFile>& inputs, std::vector<std::string>& warnings) {
   MapReader m(f.node, file, Quote(f.path), f.path);
   Field hydrostatic = m.Get("hydrostatic"), zero = m.Get("zero_depth"), table = m.Get("table"), log = m.Get("log");
   m.Finish();
@@ -343,6 +371,7 @@ depth::PorePressureSpec ReadPorePressure(const Field& f, const std::string& file
   if (!lfile) throw InputError(l.at(), "missing required key " + Quote(log.path + ".file") + " (the LAS file)");
   LogRef r = ReadLogRef(l, lfile, curve, offset, survey, file, inputs);
   const depth::CurveSeries s = depth::ExtractCurve(r.las, r.curve, r.offset, r.md, r.tvd);
+  AddWarnings(warnings, s.warnings);
   std::string unit = s.unit;
   static const std::vector<std::pair<std::string, std::string>> kSpellings = {
       {"PSI", "psi"}, {"PSIA", "psi"}, {"KPA", "kPa"}, {"MPA", "MPa"}, {"PA", "Pa"}, {"BAR", "bar"}};
@@ -516,6 +545,7 @@ void ReadFacies(const Field& f, const std::string& file, const std::vector<Study
   Require(codes, m, f.path + ".codes");
   LogRef r = ReadLogRef(m, lfile, curve, offset, survey, file, inputs);
   const depth::CurveSeries s = depth::ExtractCurve(r.las, r.curve, r.offset, r.md, r.tvd);
+  AddWarnings(t.spec.warnings, s.warnings);
   depth::FaciesCurve fc;
   fc.depth = s.depth;
   for (double v : s.value) {
@@ -601,7 +631,8 @@ DepthTableChoice ReadEntry(const YAML::Node& node, const std::string& file, cons
       throw InputError(step.at, Quote(step.path) + " = " + step.Scalar() + " gives more than 1000000 rows");
   }
   t.spec.overburden = ReadOverburden(overburden, file, t.spec, inputs, t.notes);
-  t.spec.pore_pressure = ReadPorePressure(pore, file, t.spec, inputs);
+  AddWarnings(t.spec.warnings, t.spec.overburden.profile.warnings);
+  t.spec.pore_pressure = ReadPorePressure(pore, file, t.spec, inputs, t.spec.warnings);
   t.spec.stress = ReadStress(stress, file);
 
   {

@@ -169,12 +169,14 @@ std::vector<std::string> HeaderLines(const StudyRun& run, size_t index) {
                 Sig(s.depletion[k].drop / u.stress_f, "%.6g") + " " + u.stress_word +
                 " at every step; d" + std::to_string(k + 1) + "_* columns are plug-in values after depletion");
   for (const std::string& n : c.notes) h.push_back(n);
+  for (const std::string& w : s.warnings) h.push_back(w);
   const DepthTableRun* r = index < run.depth_tables.size() ? &run.depth_tables[index] : nullptr;
   if (r != nullptr)
     for (const std::string& a : r->table.assumptions) h.push_back("assumption: " + a);
   h.push_back("flags (';'-joined, see docs/outputs.md): below-lab-range, above-lab-range (extrapolated K), log-gap, "
               "log-fill, alpha-outside-bounds (alpha < porosity or > 1; never clipped), fixed-point-not-converged, "
-              "unmapped, non-positive-effective-stress, in-water, model-undefined, negative-pore-pressure (depletion drop > P_p); "
+              "unmapped, non-positive-effective-stress, in-water, model-undefined, negative-pore-pressure (depletion drop > P_p), "
+              "log-density-range (the S_v integral crosses log densities outside the plausible range); "
               "blank cell = not computed");
   for (const std::string& x : DepthCautions()) h.push_back("CAUTION: " + x);
   if (r == nullptr || !r->computed)
@@ -300,6 +302,7 @@ nlohmann::ordered_json DepthTablesJson(const StudyRun& run) {
     j["depletion"] = dep;
     j["assumptions"] = r != nullptr ? r->table.assumptions : std::vector<std::string>{};
     j["notes"] = c.notes;
+    j["warnings"] = s.warnings;
     std::vector<std::string> cautions = {CautionText()};
     cautions.insert(cautions.end(), DepthCautions().begin(), DepthCautions().end());
     j["cautions"] = cautions;
@@ -354,6 +357,7 @@ void WriteDepthSummary(const StudyRun& run, std::ostream& out) {
     out << "\nDepth table " << s.name << " (" << DepthTableFileName(c) << "): " << len(s.top) << " to " << len(s.base)
         << " below " << depth::ToString(s.datum.kind) << ", step " << len(s.step) << "\n";
     out << "  K_dry at " << MeasureText(s.stress) << "\n";
+    for (const std::string& w : s.warnings) out << "  " << w << "\n";
     const DepthTableRun* r = i < run.depth_tables.size() ? &run.depth_tables[i] : nullptr;
     if (r == nullptr || !r->computed) {
       out << "  NOT COMPUTED: " << (r == nullptr ? std::string("the table was not run") : r->message) << "\n";

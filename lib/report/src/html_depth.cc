@@ -9,6 +9,16 @@
 
 namespace porofit {
 
+std::string RenderDepthInputWarnings(const std::vector<std::string>& warnings) {
+  if (warnings.empty()) return {};
+  std::ostringstream o;
+  o << "<div class=\"warning\" role=\"alert\"><strong>" << warnings.size()
+    << " input warning(s)</strong> (departures of the input files; read them before using the table):\n<ul>\n";
+  for (const std::string& w : warnings) o << "<li>" << detail::Esc(w) << "</li>\n";
+  o << "</ul></div>\n";
+  return o.str();
+}
+
 std::string RenderDepthTableSection(const depth::DepthTable& table, bool field_units,
                                     std::vector<HtmlFigure>* figures) {
   using detail::Esc;
@@ -27,6 +37,7 @@ std::string RenderDepthTableSection(const depth::DepthTable& table, bool field_u
     << HtmlNum("%.1f", spec.base / z_unit) << " " << z_name << " (step " << HtmlNum("%.2f", spec.step / z_unit) << " "
     << z_name << ") below the " << Esc(std::string(depth::ToString(spec.datum.kind)))
     << " datum; bands at " << detail::LevelText(spec.band_level) << ".</p>\n";
+  o << RenderDepthInputWarnings(spec.warnings);
   if (!table.assumptions.empty()) {
     o << "<h3>Assumptions</h3>\n<ul class=\"assumptions\">\n";
     for (const std::string& a : table.assumptions) o << "<li>" << Esc(a) << "</li>\n";
@@ -74,7 +85,8 @@ std::string RenderDepthTableSection(const depth::DepthTable& table, bool field_u
   }
   o << "</table>\n<p class=\"note\">Flags: below-lab-range / above-lab-range = K evaluated outside the plug's tested "
        "pressures (extrapolation); alpha-outside-bounds = alpha outside [phi, 1], shown as computed, never clipped; "
-       "log-gap / log-fill = the overburden integral crosses bridged or filled log samples; unmapped = no curve "
+       "log-gap / log-fill = the overburden integral crosses bridged or filled log samples; log-density-range = it "
+       "crosses log densities outside the plausible range (screened or kept, as the study says); unmapped = no curve "
        "assigned; in-water = above the rock top.</p>\n</section>\n";
   return o.str();
 }

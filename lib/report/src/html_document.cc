@@ -233,7 +233,7 @@ std::string HtmlReport::Tail(const StudyRun& across, const std::string& overview
     } else {
       o << "<section class=\"depth\" id=\"depth-" << detail::DepthSlug(choice.spec.name) << "\">\n<h2>Depth table "
         << Esc(choice.spec.name) << "</h2>\n<div class=\"warning\" role=\"alert\"><strong>Not computed:</strong> "
-        << Esc(table.message) << "</div>\n</section>\n";
+        << Esc(table.message) << "</div>\n" << RenderDepthInputWarnings(choice.spec.warnings) << "</section>\n";
     }
   }
   o << "<footer>\n<p class=\"caution\" id=\"caution-bottom\" role=\"note\">" << Esc(CautionText()) << "</p>\n";

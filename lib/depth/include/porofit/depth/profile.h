@@ -1,6 +1,6 @@
 #pragma once
-// Density profiles against depth and their overburden integral (domain brief §6,
-// "Vertical stress"). Shared by the density-log reader (porofit/depth/las.h)
+// Density profiles against depth and their overburden integral
+// (docs/depth-method.md, "Vertical stress"). Shared by the density-log reader (porofit/depth/las.h)
 // and the depth-table engine (porofit/depth/table.h).
 //
 // Depths are metres of true vertical depth (TVD) below the table's datum
@@ -21,6 +21,8 @@ enum class DensitySource : std::uint8_t {
   kBridged = 1,   ///< inside a gap (NULL run or screened bad hole), linearly bridged between the valid neighbours
   kFilled = 2,    ///< above the log top (or below the rock top down to it), from the user's trend
   kBadHole = 3,   ///< a log sample rejected by the bad-hole screen, then bridged
+  kOutOfRange = 4,      ///< a log sample outside the plausible density range, rejected, then bridged
+  kOutOfRangeKept = 5,  ///< a log sample outside the plausible density range, kept as measured (study choice)
 };
 std::string_view ToString(DensitySource s);
 
@@ -35,6 +37,9 @@ struct DensityProfile {
   /// with their depth ranges, fill trend used, samples screened). Copied into
   /// the table header.
   std::vector<std::string> notes;
+  /// Warnings about the input ("file:line:col: warning: ..."): departures of
+  /// the LAS file that change no number, and implausible densities (counted).
+  std::vector<std::string> warnings;
 };
 
 /// Overburden load of the profile between its first depth and each depth of
@@ -44,8 +49,8 @@ struct DensityProfile {
 /// porofit::InputError (the caller must not extrapolate a log silently).
 std::vector<double> CumulativeLoad(const DensityProfile& profile, const std::vector<double>& at);
 
-/// The worst DensitySource met between the profile's top and depth z
-/// (priority kBadHole > kBridged > kFilled > kMeasured), for row flags.
+/// The DensitySources met between the profile's top and depth z,
+/// for row flags.
 /// Precomputed per sample so a table of N rows costs O(N + M).
 class SourceIndex {
  public:

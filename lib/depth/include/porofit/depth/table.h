@@ -162,6 +162,10 @@ struct DepthTableSpec {
   /// uses t(n - p) (z for kNormal or an unscaled covariance), as lib/bands does.
   bands::DeltaQuantile band_quantile = bands::DeltaQuantile::kWelchSatterthwaite;
   std::vector<DepletionScenario> depletion;
+  /// Warnings about the inputs, "file:line:col: warning: message" (LAS
+  /// departures that change no number, implausible densities counted). Not
+  /// used by the engine; written with the table by every writer.
+  std::vector<std::string> warnings;
 };
 
 /// Row flags (bits).
@@ -177,6 +181,7 @@ enum DepthFlag : std::uint32_t {
   kInWater = 1u << 8,             ///< step above the rock top (no K)
   kModelUndefined = 1u << 9,      ///< K(P) not finite
   kNegativePorePressure = 1u << 10,  ///< a depletion drop larger than P_p (depleted P_p < 0; values still computed, not clipped)
+  kLogDensityRange = 1u << 11,    ///< the S_v integral crosses log densities outside the plausible range (screened or kept)
 };
 /// "below-lab-range;log-gap;..." (";"-joined, "" for none), in bit order.
 std::string FlagsToString(std::uint32_t flags);

@@ -123,7 +123,7 @@ void WriteHtmlReport(const StudyRun& run, const std::vector<InputDigest>& inputs
 /// files are not fsynced one by one: WriteFolderAtomically syncs the tree.
 void WriteHtmlFigureFiles(const std::filesystem::path& folder, const std::vector<HtmlFigure>& figures);
 
-/// One depth table as an HTML <section>: its assumptions; figures of S_v,
+/// One depth table as an HTML <section>: its input warnings, its assumptions; figures of S_v,
 /// P_p and the evaluation pressure against depth, alpha(z) and K_dry(z) with
 /// their bands (depth increasing downward, flagged rows marked); a table of
 /// the rows with their flags. `field_units`: depth in ft, stresses in psi;
@@ -133,6 +133,11 @@ void WriteHtmlFigureFiles(const std::filesystem::path& folder, const std::vector
 /// documents for figures/<key>.svg.
 std::string RenderDepthTableSection(const depth::DepthTable& table, bool field_units,
                                     std::vector<HtmlFigure>* figures = nullptr);
+
+/// The depth table's input warnings (DepthTableSpec::warnings) as an alert
+/// block; "" when there are none. Part of RenderDepthTableSection, and shown
+/// for a table that was not computed.
+std::string RenderDepthInputWarnings(const std::vector<std::string>& warnings);
 
 /// Escapes &, <, >, " and ' for HTML text and attribute values.
 std::string HtmlEscape(std::string_view text);
