@@ -242,7 +242,8 @@ int CmdCheck(const std::vector<std::string>& args) {
   pos.add("study", 1);
   for (const std::string& a : args) {
     if (a == "--help" || a == "-h") {
-      std::cout << opts << "\nLoads and validates the study and its data files; fits nothing, writes nothing.\n";
+      std::cout << opts << "\nLoads and validates the study and its data files; fits nothing, writes nothing.\n"
+                           "Lists the samples, user models and depth tables on stdout; warnings go to stderr.\n";
       return kExitOk;
     }
   }
@@ -264,7 +265,15 @@ int CmdCheck(const std::vector<std::string>& args) {
     std::cout << "\n";
   }
   for (const porofit::ModelSpec& m : study.user_models) std::cout << "  user model " << m.id << ": " << m.formula << "\n";
-  for (const std::string& w : study.warnings) std::cout << w << "\n";
+  for (const porofit::DepthTableChoice& t : study.depth_tables) {
+    std::cout << "  depth table " << t.spec.name << ": " << t.spec.curves.size() << " fitted curve"
+              << (t.spec.curves.size() == 1 ? "" : "s") << ", written as " << porofit::DepthTableFileName(t) << "\n";
+  }
+  // Warnings go to stderr, so that stdout stays the plain validation record.
+  for (const std::string& w : study.warnings) std::cerr << w << "\n";
+  for (const porofit::DepthTableChoice& t : study.depth_tables) {
+    for (const std::string& w : t.spec.warnings) std::cerr << w << "\n";
+  }
   const std::string invented = porofit::InventedNotice(study);
   if (!invented.empty()) std::cout << invented << "\n";
   return kExitOk;

@@ -173,6 +173,9 @@ TEST(SampleStudy, CheckValidatesWithoutWriting) {
   const Outcome r = s.Run("check " + Quote(POROFIT_SAMPLE_STUDY));
   EXPECT_EQ(r.exit_code, 0) << r.err;
   EXPECT_NE(r.out.find(": ok - study"), std::string::npos) << r.out;
+  // The sample study's depth table is listed with the file it would be written to.
+  EXPECT_NE(r.out.find("depth table QV-14: "), std::string::npos) << r.out;
+  EXPECT_NE(r.out.find("written as depth_QV-14.csv"), std::string::npos) << r.out;
   EXPECT_TRUE(fs::is_empty(s.dir()));
 }
 
