@@ -132,7 +132,7 @@ std::string Nested(const std::string& shape, int levels) {
   if (shape == "power") for (int i = 0; i < n; ++i) s += "^1";
   if (shape == "call") {
     s = "K_inf";
-    for (int i = 0; i < n; ++i) s = "exp(" + s + ")";
+    for (int i = 0; i < n; ++i) s = "sqrt(" + s + ")";
   }
   return s;
 }

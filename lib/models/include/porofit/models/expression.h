@@ -59,7 +59,7 @@ namespace porofit {
 inline constexpr size_t kMaxFormulaLength = 10000;
 /// Deepest nesting accepted (see "Limits" above); hand-written formulas
 /// rarely nest more than ten levels.
-inline constexpr int kMaxFormulaDepth = 200;
+inline constexpr int kMaxFormulaDepth = 256;
 
 struct FormulaParameter {
   std::string name;      ///< symbol used in the formula, e.g. "K_inf"
