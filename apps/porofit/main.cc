@@ -195,6 +195,9 @@ int CmdFit(const std::vector<std::string>& args, const std::string& command_line
   }
   const po::variables_map vm = Parse(args, all, pos);
   if (threads < 1) throw UsageError{"--threads = " + std::to_string(threads) + " must be at least 1"};
+  if (threads > porofit::kMaxRunThreads)
+    throw UsageError{"--threads = " + std::to_string(threads) + " exceeds the limit of " +
+                     std::to_string(porofit::kMaxRunThreads)};
   if (summary_limit < 0) throw UsageError{"--summary-limit = " + std::to_string(summary_limit) + " must be >= 0"};
   const bool overwrite = vm.count("overwrite") > 0;
   const bool quiet = vm.count("quiet") > 0;

@@ -29,4 +29,26 @@ TEST(FormatNumber, ShortestRoundTrip) {
   EXPECT_EQ(FormatNumber(-999.25), "-999.25");
 }
 
+// Messages quote user text; whatever bytes it held, the message stays valid
+// UTF-8 with no control characters other than line feed and tab.
+TEST(PrintableText, EscapesInvalidUtf8AndControlBytes) {
+  EXPECT_EQ(PrintableText("plain ascii"), "plain ascii");
+  EXPECT_EQ(PrintableText("K \xC3\x97 P, \xE2\x89\xA4 1, \xF0\x9F\x98\x80"), "K \xC3\x97 P, \xE2\x89\xA4 1, \xF0\x9F\x98\x80");
+  EXPECT_EQ(PrintableText("lone \xC3 byte"), "lone \\xC3 byte");
+  EXPECT_EQ(PrintableText("cut \xE2\x89"), "cut \\xE2\\x89");
+  EXPECT_EQ(PrintableText("latin-1 caf\xE9"), "latin-1 caf\\xE9");
+  EXPECT_EQ(PrintableText("overlong \xC0\xAF"), "overlong \\xC0\\xAF");
+  EXPECT_EQ(PrintableText("surrogate \xED\xA0\x80"), "surrogate \\xED\\xA0\\x80");
+  using namespace std::string_literals;  // "..."s keeps the NUL byte
+  EXPECT_EQ(PrintableText("nul \0 bell \a del \x7F"s), "nul \\x00 bell \\x07 del \\x7F");
+  EXPECT_EQ(PrintableText("line\nand\ttab"), "line\nand\ttab");
+}
+
+TEST(InputError, MessageIsValidUtf8WhateverTheInput) {
+  const InputError e({"study.yaml", 3, 1}, "unexpected '\xC3' in 'S\x01'");
+  EXPECT_EQ(e.message(), "unexpected '\\xC3' in 'S\\x01'");
+  EXPECT_STREQ(e.what(), "study.yaml:3:1: error: unexpected '\\xC3' in 'S\\x01'");
+  EXPECT_EQ(PrintableText(e.what()), e.what());
+}
+
 }  // namespace porofit

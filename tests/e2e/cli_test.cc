@@ -140,6 +140,40 @@ TEST(Cli, BadThreadCountIsNamedAndExitsTwo) {
   }
 }
 
+TEST(Cli, ThreadCountOverTheLimitIsNamedAndExitsTwo) {
+  Scratch s;
+  const Outcome r = s.Run("fit " + Quote(POROFIT_SAMPLE_STUDY) + " --out " + Quote((s.dir() / "o").string()) +
+                          " --threads 100000");
+  EXPECT_EQ(r.exit_code, 2);
+  EXPECT_NE(r.err.find("--threads = 100000 exceeds the limit of 1024"), std::string::npos) << r.err;
+  EXPECT_FALSE(fs::exists(s.dir() / "o"));
+}
+
+// Inputs that used to crash the tool (SIGSEGV in the formula parser) or end in
+// an uncaught exception (exit 3) are located input errors for check and fit.
+TEST(Cli, FormerCrashesAreLocatedInputErrors) {
+  Scratch s;
+  const std::string head =
+      "name: former crashes (invented)\nsamples:\n  - id: S1\n    lithology: sandstone\n    porosity: 0.2\n"
+      "    bulk_density: 2.2 g/cc\n    measurement: static\n    models: [linear]\n";
+  std::ofstream(s.dir() / "deep.yaml") << "user_models:\n  - id: deep\n    formula: \"" << std::string(20000, '(')
+                                       << "a*P" << std::string(20000, ')') << "\"\n    parameters: {a: {unit: GPa, start: 1}}\n"
+                                       << head << "    data: {columns: [P MPa, K GPa], rows: [[5, 9], [10, 11]]}\n";
+  std::ofstream(s.dir() / "zero.yaml") << head << "    data: {columns: [P MPa, K GPa], file: /dev/zero}\n";
+  std::ofstream(s.dir() / "misspelt.yaml") << head << "    data: {columns: [P MPa, K GPa], rows: [[5, 9], [10, 11]]}\n"
+                                           << "  - ID: S2\n    lithology: sandstone\n";
+  for (const char* name : {"deep.yaml", "zero.yaml", "misspelt.yaml"}) {
+    const std::string study = (s.dir() / name).string();
+    for (const std::string& cmd : {"check " + Quote(study), "fit " + Quote(study) + " --out " + Quote((s.dir() / "o").string())}) {
+      const Outcome r = s.Run(cmd);
+      EXPECT_EQ(r.exit_code, 2) << cmd << "\n" << r.err;
+      EXPECT_EQ(r.err.rfind(study + ":", 0), 0u) << r.err;
+      EXPECT_EQ(r.err.find("internal error"), std::string::npos) << r.err;
+      EXPECT_FALSE(fs::exists(s.dir() / "o"));
+    }
+  }
+}
+
 TEST(Cli, UnknownCommandSuggestsTheNearestOne) {
   Scratch s;
   const Outcome r = s.Run("fti");

@@ -121,6 +121,69 @@ TEST(FormulaModel, MalformedFormulasNameColumnAndProblem) {
   }
 }
 
+// The parser counts nesting on every recursive path; one level below the
+// limit parses (and evaluates), the limit itself is a FormulaError at a column.
+std::string Nested(const std::string& shape, int levels) {
+  // `levels` is the number of Signed() frames the parser opens.
+  const int n = levels - 1;
+  if (shape == "parens") return std::string(n, '(') + "K_inf" + std::string(n, ')');
+  if (shape == "minus") return std::string(n, '-') + "K_inf";
+  std::string s = "K_inf";
+  if (shape == "power") for (int i = 0; i < n; ++i) s += "^1";
+  if (shape == "call") {
+    s = "K_inf";
+    for (int i = 0; i < n; ++i) s = "sqrt(" + s + ")";
+  }
+  return s;
+}
+
+TEST(FormulaModel, NestingIsBoundedOnEveryRecursivePath) {
+  std::vector<FormulaParameter> p = {{"K_inf", "GPa", 1e9, -1e9, 1e9, 20, ""}};
+  for (const char* shape : {"parens", "minus", "power", "call"}) {
+    const ModelSpec ok = MakeFormulaModel("deep", Nested(shape, kMaxFormulaDepth), p);
+    const double theta[] = {0.5};
+    EXPECT_TRUE(std::isfinite(ok.value(theta, 10.0))) << shape;
+    try {
+      MakeFormulaModel("deep", Nested(shape, kMaxFormulaDepth + 1), p);
+      ADD_FAILURE() << shape << " one level over the limit parsed";
+    } catch (const FormulaError& e) {
+      EXPECT_GT(e.column(), 0) << shape;
+      EXPECT_NE(e.detail().find("nests deeper than the limit of " + std::to_string(kMaxFormulaDepth)),
+                std::string::npos) << e.detail();
+    }
+  }
+}
+
+TEST(FormulaModel, LengthIsBounded) {
+  std::vector<FormulaParameter> p = {{"K_inf", "GPa", 1e9, -1e9, 1e9, 20, ""}};
+  std::string long_sum = "K_inf";
+  while (long_sum.size() <= kMaxFormulaLength) long_sum += " + 1";
+  try {
+    MakeFormulaModel("long", long_sum, p);
+    ADD_FAILURE() << "a formula over the length limit parsed";
+  } catch (const FormulaError& e) {
+    EXPECT_EQ(e.column(), 0);
+    EXPECT_NE(e.detail().find("over the limit of " + std::to_string(kMaxFormulaLength)), std::string::npos) << e.detail();
+  }
+}
+
+TEST(FormulaModel, LiteralsMustBeFiniteAndCharactersWhole) {
+  std::vector<FormulaParameter> p = {{"K_inf", "GPa", 1e9, -1e9, 1e9, 20, ""}};
+  try {
+    MakeFormulaModel("big", "K_inf + 1e999", p);
+    ADD_FAILURE() << "1e999 parsed";
+  } catch (const FormulaError& e) {
+    EXPECT_EQ(e.column(), 9);
+    EXPECT_NE(e.detail().find("number '1e999' is too large to be a finite double"), std::string::npos) << e.detail();
+  }
+  try {
+    MakeFormulaModel("sign", "K_inf \xC3\x97 2", p);  // U+00D7 MULTIPLICATION SIGN
+    ADD_FAILURE() << "a non-ASCII operator parsed";
+  } catch (const FormulaError& e) {
+    EXPECT_EQ(e.detail(), "unexpected '\xC3\x97'");  // the whole character, not its first byte
+  }
+}
+
 TEST(FormulaModel, BadParameterDeclarationsAreRejected) {
   auto p = ExpModulusParams();
   p[1].start = std::numeric_limits<double>::quiet_NaN();

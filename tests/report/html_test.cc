@@ -267,6 +267,26 @@ TEST(HtmlReport, SlugsOfIdsThatDifferOnlyInReplacedCharactersAreMadeUnique) {
   EXPECT_EQ(r.Slug(1), "P_1-2");
 }
 
+// Figure files are figures/<slug>_<figure>.svg: a slug never holds a path
+// separator or a leading dot and stays short even for the longest valid id of
+// multi-byte characters (64 characters, 128 bytes here).
+TEST(HtmlReport, SlugsAreSafeBoundedFileNames) {
+  StudyRun run = testing::HandBuiltRun();
+  run.study.samples.push_back(run.study.samples[0]);
+  run.samples.push_back(run.samples[0]);
+  std::string wide;
+  for (size_t i = 0; i < kMaxSampleIdLength; ++i) wide += "\xC3\x9C";
+  run.study.samples[0].sample.id = wide;
+  run.study.samples[1].sample.id = "../.hidden/" + wide;
+  const HtmlReport r(run.study, run.metadata, {}, ModelRegistry::Builtin());
+  for (size_t i = 0; i < 2; ++i) {
+    EXPECT_LE(r.Slug(i).size(), kMaxSampleIdLength + 3) << r.Slug(i);
+    EXPECT_EQ(r.Slug(i).find_first_not_of("ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789_-"),
+              std::string::npos) << r.Slug(i);
+  }
+  EXPECT_NE(r.Slug(0), r.Slug(1));
+}
+
 TEST(HtmlReport, FigureAndSectionLimitsBoundTheDocument) {
   const StudyRun& run = SampleRun();
   ASSERT_GE(run.samples.size(), 3u);

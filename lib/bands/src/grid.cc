@@ -13,16 +13,24 @@ std::string Violation(const char* field, double value, const char* rule) {
   return std::string("grid.") + field + " = " + FormatNumber(value) + " violates " + rule;
 }
 
+std::string OverLimit(const char* field, long long value, int limit) {
+  return std::string("grid.") + field + " = " + std::to_string(value) + " exceeds the limit of " + std::to_string(limit);
+}
+
 }  // namespace
 
 std::string GridSpec::Validate() const {
   if (spacing == GridSpacing::kExplicit) {
     if (pressures.empty()) return "grid.pressures is empty: an explicit grid needs at least one pressure";
+    if (pressures.size() > static_cast<size_t>(kMaxGridPoints))
+      return "grid.pressures lists " + std::to_string(pressures.size()) + " pressures, over the limit of " +
+             std::to_string(kMaxGridPoints);
     for (double p : pressures)
       if (!(std::isfinite(p) && p >= 0)) return Violation("pressures", p, "finite pressure >= 0");
     return {};
   }
   if (count < 2) return Violation("count", count, "count >= 2");
+  if (count > kMaxGridPoints) return OverLimit("count", count, kMaxGridPoints);
   if (!(std::isfinite(margin) && margin >= 0)) return Violation("margin", margin, "margin >= 0");
   if (from && !(std::isfinite(*from) && *from >= 0)) return Violation("from", *from, "finite from >= 0");
   if (to && !(std::isfinite(*to) && *to >= 0)) return Violation("to", *to, "finite to >= 0");

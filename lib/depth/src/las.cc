@@ -17,6 +17,8 @@
 #include "las_internal.h"
 #include "porofit/depth/las.h"
 
+#include "porofit/core/input_file.h"
+
 namespace porofit::depth {
 namespace {
 
@@ -526,12 +528,7 @@ LasFile Parser::Run() {
 LasFile ParseLas(const std::string& text, const std::string& path) { return Parser(text, path).Run(); }
 
 LasFile ReadLas(const std::string& path) {
-  std::ifstream in(path, std::ios::binary);
-  if (!in) throw InputError({path, 0, 0}, "cannot open LAS file");
-  std::ostringstream ss;
-  ss << in.rdbuf();
-  if (in.bad()) throw InputError({path, 0, 0}, "cannot read LAS file");
-  return ParseLas(ss.str(), path);
+  return ParseLas(ReadInputFile({path, "LAS file", "", {}, kMaxLasFileBytes}), path);
 }
 
 }  // namespace porofit::depth

@@ -40,14 +40,20 @@ std::string Violation(const char* field, double value, const char* rule) {
   return std::string("fit.") + field + " = " + FormatNumber(value) + " violates " + rule;
 }
 
+std::string OverLimit(const char* field, long long value, int limit) {
+  return std::string("fit.") + field + " = " + std::to_string(value) + " exceeds the limit of " + std::to_string(limit);
+}
+
 }  // namespace
 
 std::string FitOptions::Validate() const {
   if (!(std::isfinite(loss_scale) && loss_scale > 0)) return Violation("loss_scale", loss_scale, "loss_scale > 0");
   if (multistart < 1) return Violation("multistart", multistart, "multistart >= 1");
+  if (multistart > kMaxMultistart) return OverLimit("multistart", multistart, kMaxMultistart);
   if (!(std::isfinite(start_spread) && start_spread > 0))
     return Violation("start_spread", start_spread, "start_spread > 0");
   if (max_iterations < 1) return Violation("max_iterations", max_iterations, "max_iterations >= 1");
+  if (max_iterations > kMaxIterations) return OverLimit("max_iterations", max_iterations, kMaxIterations);
   if (!(function_tolerance >= 0 && function_tolerance < 1))
     return Violation("function_tolerance", function_tolerance, "0 <= function_tolerance < 1");
   if (!(gradient_tolerance >= 0 && gradient_tolerance < 1))

@@ -5,6 +5,8 @@
 #include <fstream>
 #include <sstream>
 
+#include "porofit/core/input_file.h"
+
 namespace porofit::csv {
 namespace {
 
@@ -243,11 +245,7 @@ Table ParseCsv(std::string_view text, const std::string& file, const ReadOptions
 }
 
 Table ReadCsvFile(const std::string& file, const ReadOptions& options) {
-  std::ifstream in(file, std::ios::binary);
-  if (!in) throw InputError({file, 0, 0}, "cannot open data file '" + file + "'");
-  std::ostringstream buffer;
-  buffer << in.rdbuf();
-  return ParseCsv(buffer.str(), file, options);
+  return ParseCsv(ReadInputFile({file, "data file", "", {}, kMaxTableFileBytes}), file, options);
 }
 
 bool ParseNumber(std::string_view text, double& value, char decimal) {

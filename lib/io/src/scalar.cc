@@ -96,4 +96,12 @@ std::optional<UnitExpression> ParseUnitExpression(std::string_view text) {
   return out;
 }
 
+void CheckUnitInRange(const UnitExpression& u, const std::string& unit, const std::string& of,
+                      const SourceLocation& at) {
+  if (std::isfinite(u.si_factor) && u.si_factor > 0) return;
+  throw InputError(at, "unit '" + unit + "' of " + of +
+                           " is out of range: its factor to SI units is not a finite number (pressure exponent " +
+                           FormatNumber(u.pressure_exponent) + "); use a smaller exponent");
+}
+
 }  // namespace porofit::io::detail

@@ -4,6 +4,8 @@
 #include <string>
 #include <string_view>
 
+#include "porofit/core/error.h"
+
 namespace porofit::io::detail {
 
 struct NumberText {
@@ -27,5 +29,11 @@ struct UnitExpression {
 /// "1", "/", "*" and "^" with a number or "(a/b)". Returns nullopt if it
 /// cannot be parsed.
 std::optional<UnitExpression> ParseUnitExpression(std::string_view text);
+
+/// Throws InputError at `at` unless `u`'s SI factor is a finite positive
+/// double: an expression such as "GPa^400" (1e3600 Pa^400) parses but cannot
+/// be used. `unit` is the text as written, `of` names its owner.
+void CheckUnitInRange(const UnitExpression& u, const std::string& unit, const std::string& of,
+                      const SourceLocation& at);
 
 }  // namespace porofit::io::detail

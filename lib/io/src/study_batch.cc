@@ -12,6 +12,7 @@
 #include <unordered_map>
 #include <unordered_set>
 
+#include "porofit/core/input_file.h"
 #include "porofit/core/units.h"
 #include "porofit/io/csv.h"
 #include "csv_columns.h"
@@ -41,16 +42,11 @@ csv::Table ReadTable(const Field& f, const std::string& study_file, Study& study
                      const csv::ReadOptions& dialect) {
   const std::string& name = f.Scalar();
   const std::string path = Resolve(study_file, name);
-  std::ifstream in(path, std::ios::binary);
-  if (!in)
-    throw InputError(f.at, "cannot open " + what + " " + Quote(name) +
-                               (path == name ? std::string() : " (looked for " + Quote(path) + ")"));
-  std::ostringstream buffer;
-  buffer << in.rdbuf();
+  const std::string text = ReadInputFile({path, what, name, f.at, kMaxTableFileBytes});
   bool seen = false;
   for (const auto& x : study.inputs) seen = seen || (x.path == path && x.role == "data");
   if (!seen) study.inputs.push_back({path, "data"});
-  csv::Table t = csv::ParseCsv(buffer.str(), path, dialect);
+  csv::Table t = csv::ParseCsv(text, path, dialect);
   if (!t.has_header) throw InputError({path, 0, 0}, what + " " + Quote(name) + " has no header line");
   if (t.rows.empty()) throw InputError({path, t.header.line, 0}, what + " " + Quote(name) + " has no data rows");
   return t;
@@ -89,6 +85,9 @@ double Cell(const csv::Row& row, const NumColumn& c, const std::string& file) {
     throw InputError(at, "non-numeric value " + Quote(text) + " in column " + Quote(c.name) +
                              csv::DecimalHint(text, row.decimal));
   if (!std::isfinite(v)) throw InputError(at, c.name + " = " + text + " is not finite");
+  if (!std::isfinite(v * c.factor))
+    throw InputError(at, c.name + " = " + text + " " + c.unit +
+                             " is out of range: not a finite number once converted to SI units");
   return v * c.factor;
 }
 
@@ -242,6 +241,10 @@ void ReadSampleTable(const Field& table, const std::string& study_file, const Mo
   // ---- the sample table's header
   const csv::ReadOptions dialect = ReadDialectKeys(delimiter, decimal);
   const csv::Table st = ReadTable(file, study_file, study, "sample table", dialect);
+  if (study.samples.size() + st.rows.size() > kMaxStudySamples)
+    throw InputError({st.file, st.rows[kMaxStudySamples - std::min(kMaxStudySamples, study.samples.size())].line, 0},
+                     "the study holds " + std::to_string(study.samples.size() + st.rows.size()) +
+                         " samples, over the limit of " + std::to_string(kMaxStudySamples));
   const std::string& sf = st.file;
   std::unordered_map<std::string, int> col;
   NumColumn porosity, density, cycle;
@@ -333,7 +336,7 @@ void ReadSampleTable(const Field& table, const std::string& study_file, const Mo
     Sample& s = ss.sample;
     s.where = {sf, row.line, 0};
     s.id = text(c_id);
-    if (s.id.empty()) throw InputError(at(c_id), "'id' must not be empty");
+    CheckSampleId(s.id, at(c_id));
     if (!ids.insert(s.id).second) throw InputError(at(c_id), "duplicate sample id " + Quote(s.id));
     const std::string what = "sample " + Quote(s.id);
     s.lithology = text(c_lith);

@@ -10,6 +10,7 @@
 #include <limits>
 #include <optional>
 
+#include "porofit/core/input_file.h"
 #include "porofit/core/units.h"
 #include "porofit/depth/las.h"
 #include "scalar.h"
@@ -99,10 +100,7 @@ std::string DataPath(const Field& f, const std::string& study_file, std::vector<
   const std::filesystem::path p(name);
   const std::string path =
       p.is_absolute() ? name : (std::filesystem::path(study_file).parent_path() / p).lexically_normal().string();
-  std::ifstream probe(path, std::ios::binary);
-  if (!probe)
-    throw InputError(f.at, "cannot open LAS file " + Quote(name) +
-                               (path == name ? std::string() : " (looked for " + Quote(path) + ")"));
+  CheckRegularInputFile({path, "LAS file", name, f.at, kMaxLasFileBytes});  // read when the table is built
   bool seen = false;
   for (const InputFile& in : inputs) seen = seen || (in.path == path && in.role == "data");
   if (!seen) inputs.push_back({path, "data"});

@@ -12,6 +12,7 @@
 #include <sstream>
 
 #include "porofit/core/dynamic.h"
+#include "porofit/core/input_file.h"
 #include "porofit/core/units.h"
 #include "porofit/io/csv.h"
 #include "porofit/models/strain_form.h"
@@ -210,6 +211,7 @@ double ParseParameterValue(const Field& f, const ParameterSpec& ps, const std::s
       throw InputError(f.at, "unit " + Quote(nt->unit) + " of " + Quote(f.path) + " does not fit " + model_id +
                                  " parameter " + ps.name + ", which is in " + ps.unit +
                                  "; pressure units accepted: " + units::AcceptedUnitsList(Quantity::kPressure));
+    io::detail::CheckUnitInRange(*given, nt->unit, Quote(f.path), f.at);
     si = nt->value * given->si_factor;
   }
   if (!std::isfinite(si)) throw InputError(f.at, Quote(f.path) + " = " + text + " is not finite");
@@ -491,6 +493,9 @@ Cell ReadCell(const std::string& text, const Column& col, const SourceLocation& 
     throw InputError(where, "non-numeric value " + Quote(text) + " in " + context + csv::DecimalHint(text, decimal));
   if (!std::isfinite(cell.raw)) throw InputError(where, kRoles[col.role].name + std::string(" = ") + text + " is not finite");
   cell.value = cell.raw * col.factor;
+  if (!std::isfinite(cell.value))
+    throw InputError(where, kRoles[col.role].name + std::string(" = ") + text + " " + col.unit +
+                                " is out of range: not a finite number once converted to SI units");
   return cell;
 }
 
@@ -500,15 +505,6 @@ std::string ResolveDataPath(const std::string& study_path, const std::string& fi
   const std::filesystem::path p(file);
   if (p.is_absolute()) return file;
   return (std::filesystem::path(study_path).parent_path() / p).lexically_normal().string();
-}
-
-std::string ReadWholeFile(const std::string& path, bool& ok) {
-  std::ifstream in(path, std::ios::binary);
-  ok = static_cast<bool>(in);
-  if (!ok) return {};
-  std::ostringstream buffer;
-  buffer << in.rdbuf();
-  return buffer.str();
 }
 
 // ------------------------------------------------------- grain modulus, fluid, bands
@@ -753,6 +749,9 @@ std::vector<VtiPoint> ReadVti(const Field& f, const std::string& file, const std
         throw InputError(Where(file, cell.Mark()), "non-numeric value in " + Quote(rows.path) + " row " +
                                                        std::to_string(i + 1) + " (" + kNames[j] + ")");
       v[j] = x * factor[col];
+      if (!std::isfinite(v[j]))
+        throw InputError(Where(file, cell.Mark()), kNames[j] + " = " + cell.Scalar() +
+                                                       " is out of range: not a finite number once converted to SI units");
       if (j == 0 ? !(v[j] >= 0) : !(v[j] > 0))
         throw InputError(Where(file, cell.Mark()), kNames[j] + " = " + cell.Scalar() +
                                                        (j == 0 ? " is negative; pressures must be >= 0" : " must be > 0"));
@@ -851,7 +850,7 @@ void ReadBandSettings(const Field& f, const std::string& file, const std::string
       SourceLocation where = g.at();
       for (const Field* x : {&pressures, &from, &to, &count, &spacing})
         if (*x && bad.rfind("grid." + x->key, 0) == 0) where = x->at;
-      throw InputError(where, bad);
+      throw InputError(where, f.path + "." + bad);  // "bands.grid.count = ..."
     }
     into.grid = spec;
   }
@@ -895,12 +894,7 @@ class Loader {
 };
 
 Study Loader::Parse(std::string_view text) {
-  YAML::Node root;
-  try {
-    root = YAML::Load(std::string(text));
-  } catch (const YAML::ParserException& e) {
-    throw InputError(Where(file_, e.mark), "yaml syntax error: " + e.msg);
-  }
+  const YAML::Node root = io::detail::LoadSingleDocument(std::string(text), file_, "the study file");
   if (root.IsNull()) throw InputError({file_, 0, 0}, "study file is empty");
   study_.path = file_;
   study_.inputs.push_back({file_, "study"});
@@ -967,6 +961,9 @@ Study Loader::Parse(std::string_view text) {
   if (samples) {
     samples.ExpectList();
     if (samples.node.size() == 0) throw InputError(samples.at, "'samples' is empty: the study has no samples");
+    if (samples.node.size() > kMaxStudySamples)
+      throw InputError(samples.at, "'samples' lists " + std::to_string(samples.node.size()) +
+                                       " samples, over the limit of " + std::to_string(kMaxStudySamples));
     const YAML::Node& list = samples.node;
     for (size_t i = 0; i < list.size(); ++i) ReadSample(list[i], i);
   }
@@ -1082,11 +1079,7 @@ std::vector<RawRow> Loader::ReadCsvData(const Field& file, const csv::ReadOption
                                         std::array<std::optional<Column>, kNumRoles>& columns) {
   const std::string& name = file.Scalar();
   const std::string path = ResolveDataPath(file_, name);
-  bool ok = false;
-  const std::string text = ReadWholeFile(path, ok);
-  if (!ok)
-    throw InputError(file.key_at, "cannot open data file " + Quote(name) +
-                                      (path == name ? std::string() : " (looked for " + Quote(path) + ")"));
+  const std::string text = ReadInputFile({path, "data file", name, file.key_at, kMaxTableFileBytes});
   bool seen = false;
   for (const auto& in : study_.inputs) seen = seen || (in.path == path && in.role == "data");
   if (!seen) study_.inputs.push_back({path, "data"});
@@ -1117,7 +1110,12 @@ std::vector<RawRow> Loader::ReadCsvData(const Field& file, const csv::ReadOption
 void Loader::ReadSample(const YAML::Node& node, size_t index) {
   // Name the sample by its id in messages when it has a readable one.
   std::string slot = "samples[" + std::to_string(index + 1) + "]";
-  if (node.IsMap() && node["id"].IsScalar()) slot = "sample '" + node["id"].Scalar() + "'";
+  // (Iterated, not node["id"]: on a const node a missing key is an invalid
+  // node, and asking an invalid node its type throws.)
+  if (node.IsMap())
+    for (auto it = node.begin(); it != node.end(); ++it)
+      if (it->first.IsScalar() && it->first.Scalar() == "id" && it->second.IsScalar())
+        slot = "sample " + Quote(it->second.Scalar());
   MapReader m(node, file_, slot);
   Field id = m.Get("id"), lithology = m.Get("lithology"), porosity = m.Get("porosity"),
         density = m.Get("bulk_density"), orientation = m.Get("orientation"), measurement = m.Get("measurement"),
@@ -1133,7 +1131,7 @@ void Loader::ReadSample(const YAML::Node& node, size_t index) {
   s.where = m.at();
   if (!id) throw InputError(m.at(), "missing required key 'id' in " + slot);
   s.id = id.Scalar();
-  if (s.id.empty()) throw InputError(id.at, "'id' must not be empty");
+  CheckSampleId(s.id, id.at);
   for (const auto& prior : study_.samples)
     if (prior.sample.id == s.id)
       throw InputError(id.at, "duplicate sample id " + Quote(s.id) + " (first used at line " +
@@ -1445,14 +1443,15 @@ void Loader::ReadSample(const YAML::Node& node, size_t index) {
 
 Study ParseStudy(std::string_view yaml_text, const std::string& path, const ModelRegistry& registry) {
   Loader loader(path, registry);
-  return loader.Parse(yaml_text);
+  return io::detail::WithYamlLocations(path, [&] { return loader.Parse(yaml_text); });
 }
 
 Study LoadStudy(const std::string& path, const ModelRegistry& registry) {
-  bool ok = false;
-  const std::string text = ReadWholeFile(path, ok);
-  if (!ok) throw InputError({path, 0, 0}, "cannot open study file " + Quote(path));
-  return ParseStudy(text, path, registry);
+  InputFileRequest request;
+  request.path = path;
+  request.what = "study file";
+  request.max_bytes = kMaxStudyFileBytes;
+  return ParseStudy(ReadInputFile(request), path, registry);
 }
 
 Study LoadStudy(const std::string& path) { return LoadStudy(path, ModelRegistry::Builtin()); }

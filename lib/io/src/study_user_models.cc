@@ -48,9 +48,12 @@ double ParseValue(const Field& f, const WorkingUnit& u, const std::string& what)
       throw InputError(f.at, "unit " + Quote(nt->unit) + " of " + Quote(f.path) + " does not fit " + what +
                                  ", which is in " + u.text + "; pressure units accepted: " +
                                  units::AcceptedUnitsList(units::Quantity::kPressure));
+    CheckUnitInRange(*given, nt->unit, Quote(f.path), f.at);
     v = nt->value * given->si_factor / u.expr.si_factor;
   }
   if (!std::isfinite(v)) throw InputError(f.at, Quote(f.path) + " = " + text + " is not finite");
+  if (!std::isfinite(v * u.expr.si_factor))
+    throw InputError(f.at, Quote(f.path) + " = " + text + " is out of range: not a finite number once converted to SI units");
   return v;
 }
 
@@ -157,6 +160,7 @@ std::vector<ModelSpec> ReadUserModels(const Field& f, const std::string& file, s
                                       " is not a unit of pressure powers (e.g. 'GPa', '1/GPa', 'GPa/MPa', '1'); "
                                       "pressure units accepted: " +
                                       units::AcceptedUnitsList(units::Quantity::kPressure));
+      CheckUnitInRange(*expr, u.text, pwhat, unit.at);
       u.expr = *expr;
       q.unit = u.text;
       q.si_factor = expr->si_factor;

@@ -1,6 +1,8 @@
 #include "yaml_map.h"
 
+#include <algorithm>
 #include <cmath>
+#include <vector>
 
 #include "porofit/io/csv.h"
 
@@ -9,6 +11,40 @@ namespace porofit::io::detail {
 SourceLocation Where(const std::string& file, const YAML::Mark& mark) {
   if (mark.is_null()) return {file, 0, 0};
   return {file, mark.line + 1, mark.column + 1};
+}
+
+namespace {
+
+// Line (one-based) of the "---" that opens the document whose content starts
+// on zero-based line `content_line`, searching back no further than
+// `after_line`; 0 if there is none.
+int MarkerLine(const std::string& text, int content_line, int after_line) {
+  std::vector<size_t> starts = {0};
+  for (size_t i = 0; i < text.size(); ++i)
+    if (text[i] == '\n') starts.push_back(i + 1);
+  for (int line = std::min<int>(content_line, static_cast<int>(starts.size()) - 1); line > after_line; --line)
+    if (text.compare(starts[static_cast<size_t>(line)], 3, "---") == 0) return line + 1;
+  return 0;
+}
+
+}  // namespace
+
+YAML::Node LoadSingleDocument(const std::string& text, const std::string& file, const std::string& what) {
+  std::vector<YAML::Node> docs;
+  try {
+    docs = YAML::LoadAll(text);
+  } catch (const YAML::Exception& e) {
+    throw InputError(Where(file, e.mark), "yaml syntax error: " + e.msg);
+  }
+  if (docs.empty()) return YAML::Node();
+  if (docs.size() > 1) {
+    SourceLocation at = Where(file, docs[1].Mark());
+    const int first_line = docs[0].Mark().is_null() ? -1 : docs[0].Mark().line;
+    if (const int line = MarkerLine(text, at.line - 1, first_line); line > 0) at = {file, line, 1};
+    throw InputError(at, what + " holds more than one YAML document: a second one starts here (after '---'); "
+                              "write one document per file");
+  }
+  return docs.front();
 }
 
 std::string TypeName(const YAML::Node& node) {

@@ -15,6 +15,24 @@ namespace porofit::io::detail {
 /// yaml-cpp marks are zero-based.
 SourceLocation Where(const std::string& file, const YAML::Mark& mark);
 
+/// Parses `text` as exactly one YAML document. A syntax error is an InputError
+/// at its mark; a second document ("---" after the first) is an InputError at
+/// the line of its "---" (or where its content starts).
+YAML::Node LoadSingleDocument(const std::string& text, const std::string& file, const std::string& what);
+
+/// Runs `read` and turns any yaml-cpp exception that escapes it (a conversion
+/// or an access to a missing node that the reading code did not foresee) into
+/// an InputError at the exception's mark, so no YAML failure leaves a loader
+/// without a location.
+template <class F>
+auto WithYamlLocations(const std::string& file, F&& read) -> decltype(read()) {
+  try {
+    return read();
+  } catch (const YAML::Exception& e) {
+    throw InputError(Where(file, e.mark), "cannot read this YAML value: " + e.msg);
+  }
+}
+
 /// "a mapping", "a list", "a scalar", "nothing".
 std::string TypeName(const YAML::Node& node);
 

@@ -74,7 +74,7 @@ class Parser {
     }
     if (pos_ >= text_.size()) Fail(pos_, "empty formula");
     Sum();
-    if (pos_ < text_.size()) Fail(pos_, "unexpected '" + std::string(1, text_[pos_]) + "'");
+    if (pos_ < text_.size()) Fail(pos_, "unexpected " + CharAt(pos_));
     return std::move(tape_);
   }
   const std::vector<bool>& used() const { return used_; }
@@ -83,6 +83,33 @@ class Parser {
   [[noreturn]] void Fail(size_t at, const std::string& msg) const {
     throw FormulaError(static_cast<int>(at) + 1, msg);
   }
+  // The character at `at`, quoted: a whole UTF-8 sequence when one starts
+  // there (so a message never holds a lone byte of a multi-byte character).
+  std::string CharAt(size_t at) const {
+    const unsigned char c = static_cast<unsigned char>(text_[at]);
+    size_t n = c < 0x80 ? 1 : c >= 0xF0 ? 4 : c >= 0xE0 ? 3 : c >= 0xC0 ? 2 : 1;
+    n = std::min(n, text_.size() - at);
+    for (size_t k = 1; k < n; ++k)
+      if ((static_cast<unsigned char>(text_[at + k]) & 0xC0) != 0x80) n = 1;
+    return "'" + std::string(text_.substr(at, n)) + "'";
+  }
+  // Counts one level of nesting for as long as it lives. Every recursive path
+  // of the grammar (parentheses, function arguments, unary signs, the right
+  // side of '^') passes through Signed(), which holds one.
+  class Nest {
+   public:
+    explicit Nest(Parser& p) : p_(p) {
+      if (++p_.depth_ > kMaxFormulaDepth)
+        p_.Fail(p_.pos_, "formula nests deeper than the limit of " + std::to_string(kMaxFormulaDepth) +
+                             " levels (parentheses, function calls, signs and powers each count one)");
+    }
+    ~Nest() { --p_.depth_; }
+    Nest(const Nest&) = delete;
+    Nest& operator=(const Nest&) = delete;
+
+   private:
+    Parser& p_;
+  };
   void SkipSpace() {
     while (pos_ < text_.size() && std::isspace(static_cast<unsigned char>(text_[pos_]))) ++pos_;
   }
@@ -119,6 +146,7 @@ class Parser {
     }
   }
   void Signed() {
+    const Nest nest(*this);
     if (Accept('-')) { Signed(); Emit(Op::kNeg); return; }
     if (Accept('+')) { Signed(); return; }
     Power();
@@ -158,7 +186,7 @@ class Parser {
       Expect(']');
       return;
     }
-    Fail(pos_, "unexpected '" + std::string(1, c) + "'");
+    Fail(pos_, "unexpected " + CharAt(pos_));
   }
   void Number() {
     const size_t start = pos_;
@@ -176,7 +204,9 @@ class Parser {
       if (digits() == 0) Fail(start, "malformed number '" + std::string(text_.substr(start, pos_ - start)) + "'");
     }
     const std::string s(text_.substr(start, pos_ - start));
-    tape_.push_back(Step{Op::kConst, std::strtod(s.c_str(), nullptr)});
+    const double v = std::strtod(s.c_str(), nullptr);
+    if (!std::isfinite(v)) Fail(start, "number '" + s + "' is too large to be a finite double");
+    tape_.push_back(Step{Op::kConst, v});
     SkipSpace();
   }
   // After a function name: "(" or "[" opens the argument list; returns the closer.
@@ -240,6 +270,7 @@ class Parser {
   std::vector<bool> used_;
   Tape tape_;
   size_t pos_ = 0;
+  int depth_ = 0;  // levels of Signed() now open
 };
 
 // Evaluates the tape with `nd` derivative directions. Each stack slot holds
@@ -417,6 +448,9 @@ ModelSpec MakeFormulaModel(std::string id, std::string_view formula,
       throw FormulaError(0, "parameter '" + q.name + "': transform log needs lower >= 0, found lower = " +
                                 FormatNumber(q.lower), q.name);
   }
+  if (formula.size() > kMaxFormulaLength)
+    throw FormulaError(0, "formula of '" + id + "' is " + std::to_string(formula.size()) +
+                              " characters long, over the limit of " + std::to_string(kMaxFormulaLength));
   Parser parser(formula, params, options);
   auto compiled = std::make_shared<Compiled>();
   compiled->tape = parser.Parse();

@@ -8,6 +8,7 @@
 #include <set>
 #include <sstream>
 
+#include "porofit/core/input_file.h"
 #include "porofit/core/units.h"
 
 namespace porofit::poro {
@@ -170,13 +171,8 @@ std::vector<std::string> MineralTable::Names() const {
   return names;
 }
 
-MineralTable ParseMineralTable(std::string_view text, const std::string& file) {
-  YAML::Node root;
-  try {
-    root = YAML::Load(std::string(text));
-  } catch (const YAML::ParserException& e) {
-    throw InputError(At(file, e.mark), e.msg);
-  }
+static MineralTable ParseTable(std::string_view text, const std::string& file) {
+  const YAML::Node root = YAML::Load(std::string(text));
   if (!root.IsMap()) throw InputError({file, 1, 1}, "mineral table must be a map with keys 'units' and 'minerals'");
   CheckKeys(root, kRootKeys, "mineral table", file);
   const YAML::Mark top = root.Mark();
@@ -206,13 +202,18 @@ MineralTable ParseMineralTable(std::string_view text, const std::string& file) {
   return table;
 }
 
+MineralTable ParseMineralTable(std::string_view text, const std::string& file) {
+  // Any yaml-cpp failure (syntax, or a value the checks of ParseTable did not foresee)
+  // is reported at its mark.
+  try {
+    return ParseTable(text, file);
+  } catch (const YAML::Exception& e) {
+    throw InputError(At(file, e.mark), e.msg);
+  }
+}
+
 MineralTable LoadMineralTable(const std::string& path) {
-  std::ifstream in(path, std::ios::binary);
-  if (!in) throw InputError({path, 0, 0}, "cannot open mineral table " + Quoted(path));
-  std::ostringstream text;
-  text << in.rdbuf();
-  if (in.bad()) throw InputError({path, 0, 0}, "cannot read mineral table " + Quoted(path));
-  return ParseMineralTable(text.str(), path);
+  return ParseMineralTable(ReadInputFile({path, "mineral table", "", {}, kMaxStudyFileBytes}), path);
 }
 
 }  // namespace porofit::poro

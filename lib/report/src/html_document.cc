@@ -104,6 +104,9 @@ HtmlReport::HtmlReport(const Study& study, const RunMetadata& metadata, const st
       s += ok ? c : '_';
     }
     if (s.empty()) s = "sample";
+    // Bounded (figure file names are "<slug>_<figure>.svg"); the loader already
+    // limits ids to kMaxSampleIdLength characters, which may be several bytes each.
+    if (s.size() > kMaxSampleIdLength) s.resize(kMaxSampleIdLength);
     std::string candidate = s;
     for (int k = 2; used.count(candidate) > 0; ++k) candidate = s + "-" + std::to_string(k);
     used[candidate] = 1;

@@ -18,6 +18,8 @@ namespace porofit {
 
 std::string RunOptions::Validate() const {
   if (threads < 1) return "threads = " + std::to_string(threads) + " must be >= 1";
+  if (threads > kMaxRunThreads)
+    return "threads = " + std::to_string(threads) + " exceeds the limit of " + std::to_string(kMaxRunThreads);
   return {};
 }
 

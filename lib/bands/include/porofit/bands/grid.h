@@ -18,6 +18,11 @@ enum class GridSpacing {
   kExplicit,  ///< exactly the pressures listed in `pressures` (sorted on use)
 };
 
+/// Most grid points a spec may ask for (count, or explicit pressures): far
+/// more than a figure or table resolves, small enough that every band method
+/// stays in memory (docs/study-file.md, "Limits").
+inline constexpr int kMaxGridPoints = 100000;
+
 /// How to build a grid. Defaults: 200 linearly spaced points spanning the
 /// data's pressures widened by `margin` of their span on each side (the lower
 /// end stops at 0 for linear spacing; log spacing widens by the factor
@@ -26,11 +31,12 @@ struct GridSpec {
   GridSpacing spacing = GridSpacing::kLinear;
   std::optional<double> from;  ///< Pa; default from the data (see above)
   std::optional<double> to;    ///< Pa; default from the data
-  int count = 200;             ///< >= 2 for linear / log spacing
+  int count = 200;             ///< in [2, kMaxGridPoints] for linear / log spacing
   double margin = 0.1;         ///< >= 0; fraction of the data span added beyond each end by default
-  std::vector<double> pressures;  ///< Pa, kExplicit only; finite, >= 0, at least one
+  std::vector<double> pressures;  ///< Pa, kExplicit only; finite, >= 0, 1 to kMaxGridPoints
 
-  /// Empty if valid, otherwise "grid.<field> = value violates rule".
+  /// Empty if valid, otherwise "grid.<field> = value violates rule" (or
+  /// "... exceeds the limit of N").
   std::string Validate() const;
 };
 

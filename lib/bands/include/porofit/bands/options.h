@@ -44,6 +44,13 @@ enum class BootstrapKind {
 };
 std::string_view ToString(BootstrapKind k);
 
+/// Upper bounds of the band counts (docs/study-file.md, "Limits"): 50 to 250
+/// times the defaults, far more than percentile bands need, so that a typo
+/// cannot ask for days of refits or gigabytes of draws.
+inline constexpr int kMaxMonteCarloDraws = 1000000;
+inline constexpr int kMaxBootstrapReplicates = 100000;
+inline constexpr int kMaxBandThreads = 1024;
+
 struct BandOptions {
   /// Two-sided confidence level of every band. In (0, 1).
   double confidence = 0.95;
@@ -57,11 +64,11 @@ struct BandOptions {
 
   DeltaQuantile delta_quantile = DeltaQuantile::kWelchSatterthwaite;
 
-  /// Monte Carlo draws of (theta, K_s). >= 100.
+  /// Monte Carlo draws of (theta, K_s). In [100, kMaxMonteCarloDraws].
   int monte_carlo_draws = 4000;
   McDistribution monte_carlo_distribution = McDistribution::kStudentT;
 
-  /// Bootstrap replicates (refits). >= 100.
+  /// Bootstrap replicates (refits). In [100, kMaxBootstrapReplicates].
   int bootstrap_replicates = 2000;
   BootstrapKind bootstrap_kind = BootstrapKind::kResidual;
   /// Convergence tolerances of the bootstrap refits (function, gradient and
@@ -75,10 +82,11 @@ struct BandOptions {
   /// stream derived from (seed, method, i), and results are stored by index,
   /// so the bands are identical for any thread count.
   std::uint64_t seed = 20261201;
-  /// Worker threads for Monte Carlo and bootstrap. >= 1.
+  /// Worker threads for Monte Carlo and bootstrap. In [1, kMaxBandThreads].
   int threads = 1;
 
-  /// Empty if valid, otherwise "bands.<field> = value violates rule".
+  /// Empty if valid, otherwise "bands.<field> = value violates rule" (or
+  /// "... exceeds the limit of N").
   std::string Validate() const;
 };
 

@@ -11,6 +11,7 @@
 #include <cstdlib>
 #include <stdexcept>
 #include <string>
+#include <string_view>
 
 namespace porofit {
 
@@ -28,6 +29,8 @@ struct SourceLocation {
 
 /// Bad input. what() is the full diagnostic "file:line:col: error: message".
 /// message() is the part after "error: ", location() where it was found.
+/// Both are valid UTF-8 whatever the input held: the message and the file
+/// name pass through PrintableText() (location().file is kept as given).
 class InputError : public std::runtime_error {
  public:
   InputError(SourceLocation where, const std::string& message);
@@ -38,6 +41,12 @@ class InputError : public std::runtime_error {
   SourceLocation where_;
   std::string message_;
 };
+
+/// `text` made safe to print: every byte that is not part of a valid UTF-8
+/// sequence, and every control character other than line feed and tab
+/// (including NUL and DEL), is written as "\xNN" (two hex digits). Valid
+/// UTF-8 text without control characters is returned unchanged.
+std::string PrintableText(std::string_view text);
 
 /// Formats a double the way messages show values: shortest round-trip form.
 std::string FormatNumber(double value);

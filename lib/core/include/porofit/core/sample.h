@@ -3,6 +3,7 @@
 #include <limits>
 #include <optional>
 #include <string>
+#include <string_view>
 #include <vector>
 
 #include "porofit/core/dynamic.h"
@@ -53,9 +54,23 @@ struct DataPoint {
   SourceLocation where;    ///< where this point was written (row of a CSV or YAML item)
 };
 
+/// Longest sample id accepted, in characters (Unicode code points). Ids name
+/// rows in every output and, made safe, the report's figure files; 64 holds
+/// any well, depth, plug and branch code written out in full.
+inline constexpr size_t kMaxSampleIdLength = 64;
+
+/// Why `id` is not a valid sample id, or "" if it is: an id is 1 to
+/// kMaxSampleIdLength characters of valid UTF-8 with no control characters
+/// (U+0000-U+001F, U+007F-U+009F) and no leading or trailing blank.
+std::string SampleIdProblem(std::string_view id);
+
+/// Throws InputError at `at` ("'id' = '...' is 70 characters long, over the
+/// limit of 64") unless SampleIdProblem(id) is "".
+void CheckSampleId(std::string_view id, const SourceLocation& at);
+
 /// A core plug tested along one branch of one cycle.
 struct Sample {
-  std::string id;
+  std::string id;  ///< valid by SampleIdProblem() when loaded from a study
   /// The physical plug (study key `plug`); "" = not given. Samples with the
   /// same plug and measurement kind but different (branch, cycle) form a
   /// branch set, tested for hysteresis (porofit/run/branches.h); each stays

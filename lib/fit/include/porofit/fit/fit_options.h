@@ -46,6 +46,12 @@ enum class SolverChoice {
 };
 std::string_view ToString(SolverChoice c);
 
+/// Upper bounds of the fit counts (docs/study-file.md, "Limits"): starts
+/// beyond 1000 find nothing 100 did not, and a start that has not converged in
+/// 100,000 iterations will not; the bounds keep a typo from running for days.
+inline constexpr int kMaxMultistart = 1000;
+inline constexpr int kMaxIterations = 100000;
+
 struct FitOptions {
   /// Robust loss on the standardised residuals r_i/sigma_i. Standard errors
   /// of a robust fit use Huber's M-estimator covariance with a robust
@@ -58,7 +64,7 @@ struct FitOptions {
   double loss_scale = 2.0;
 
   /// Number of solver starts: the heuristic start plus (multistart - 1)
-  /// perturbed starts; the lowest cost wins. >= 1.
+  /// perturbed starts; the lowest cost wins. In [1, kMaxMultistart].
   int multistart = 8;
   /// Relative spread of the perturbed starts (log-normal factor exp(N(0, s))
   /// on positive parameters, additive s*max(|theta|,1) otherwise). > 0.
@@ -66,7 +72,7 @@ struct FitOptions {
   /// Seed of the perturbation generator. Same seed, same result.
   std::uint64_t seed = 20261201;
 
-  /// Levenberg–Marquardt iteration limit per start. >= 1.
+  /// Levenberg–Marquardt iteration limit per start. In [1, kMaxIterations].
   int max_iterations = 500;
   /// Ceres convergence tolerances (relative cost change, scaled gradient
   /// max-norm, relative step). Tight by default: small fits are cheap, and the

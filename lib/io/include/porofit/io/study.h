@@ -122,6 +122,10 @@ struct JointFitChoice {
   SourceLocation where;
 };
 
+/// Most samples one study may hold (listed plus sample-table rows): ten times
+/// the 100,000-sample batches the streaming run is built for.
+inline constexpr size_t kMaxStudySamples = 1000000;
+
 struct Study {
   std::string name;
   std::string description;

@@ -27,6 +27,11 @@
 // models) and the value is K in GPa; FormulaOptions changes the symbols and
 // units (e.g. a dimensionless model: x_unit = y_unit = "1").
 //
+// Limits: a formula is at most kMaxFormulaLength bytes long and nests at most
+// kMaxFormulaDepth levels (each parenthesis or bracket, function call, unary
+// sign and right-hand side of "^" or "**" opens one), so that parsing uses
+// bounded stack; a number literal must be a finite double (1e999 is refused).
+//
 // Failure modes: a malformed formula throws FormulaError whose message()
 // starts with "column N: " (N one-based, counted in the formula text), e.g.
 // "column 12: unknown name 'Kinf' (did you mean 'K_inf'?)". Bad parameter
@@ -48,6 +53,13 @@
 #include "porofit/models/model.h"
 
 namespace porofit {
+
+/// Longest formula text accepted, in bytes (the longest published model
+/// statements are a few hundred characters).
+inline constexpr size_t kMaxFormulaLength = 10000;
+/// Deepest nesting accepted (see "Limits" above); hand-written formulas
+/// rarely nest more than ten levels.
+inline constexpr int kMaxFormulaDepth = 256;
 
 struct FormulaParameter {
   std::string name;      ///< symbol used in the formula, e.g. "K_inf"

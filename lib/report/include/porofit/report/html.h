@@ -100,7 +100,8 @@ class HtmlReport {
                    std::vector<HtmlFigure>* figures = nullptr) const;
 
   /// The anchor slug of sample `index`: the id with characters outside
-  /// [A-Za-z0-9_-] replaced by '_' (so it is a valid plot::Figure id), made unique with "-<n>" where needed.
+  /// [A-Za-z0-9_-] replaced by '_' (so it is a valid plot::Figure id and a safe file name: no path separator,
+  /// no leading dot), cut to kMaxSampleIdLength bytes, made unique with "-<n>" where needed.
   const std::string& Slug(size_t index) const { return slugs_[index]; }
 
  private:

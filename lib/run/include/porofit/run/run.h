@@ -31,9 +31,13 @@
 
 namespace porofit {
 
+/// Most worker threads a run accepts (`--threads`): more than any machine
+/// porofit runs on has cores; each thread holds a fit's working memory.
+inline constexpr int kMaxRunThreads = 1024;
+
 struct RunOptions {
   /// Worker threads over samples. 1 runs everything on the calling thread.
-  /// Must be >= 1 (Validate()).
+  /// In [1, kMaxRunThreads] (Validate()).
   int threads = 1;
   /// The command line that started the run, recorded verbatim in provenance.
   std::string command_line;
