@@ -60,7 +60,7 @@ std::string Show(double v) {
 }
 
 std::string Written(double written, std::string_view unit) {
-  return FormatNumber(written) + (unit.empty() ? "" : " " + std::string(unit));
+  return FormatNumber(written) + (unit.empty() || unit == "1" ? "" : " " + std::string(unit));
 }
 
 std::string RangeText(const PlausibleRange& r) {
@@ -153,17 +153,22 @@ void RequirePlausibleSigma(Measured m, std::string_view label, double written, s
                                "value itself is not a measurement");
     return;
   }
-  RequirePlausible(m, label, written, written_unit, sigma_si, column, at);
-  if (m == Measured::kStrain || !(std::isfinite(value_si) && value_si != 0)) return;
-  const double value = std::fabs(value_si);
-  if (sigma_si <= value) return;
+  // A sigma is small by nature: only its upper side is checked, against the
+  // range of its quantity and (except strain, which can be 0) against its value.
   const PlausibleRange& r = RangeOf(m);
+  const bool against_value = m != Measured::kStrain && std::isfinite(value_si) && value_si != 0;
+  const double limit = against_value ? std::min(r.upper_si, std::fabs(value_si)) : r.upper_si;
+  if (sigma_si <= limit) return;
   const double factor = written != 0 ? sigma_si / written : 1.0;
-  const std::vector<std::string> units =
-      Candidates(r, written, factor, 0.03 * value, [&](double v) { return v > 0 && v <= value; });
+  const double typical = against_value ? 0.03 * std::fabs(value_si) : 0.01 * r.upper_si;
+  const std::string hint = Hint(Candidates(r, written, factor, typical, [&](double v) { return v > 0 && v <= limit; }),
+                                column);
+  if (sigma_si > r.upper_si)
+    throw InputError(at, std::string(label) + " = " + Written(written, written_unit) + " is far above any " +
+                             std::string(r.what) + " (" + RangeText(r) + ")" + hint);
   throw InputError(at, std::string(label) + " = " + Written(written, written_unit) +
-                           " exceeds the value it qualifies (" + Show(value / r.show_factor) + " " +
-                           std::string(r.show_unit) + ")" + Hint(units, column));
+                           " exceeds the value it qualifies (" + Show(std::fabs(value_si) / r.show_factor) + " " +
+                           std::string(r.show_unit) + ")" + hint);
 }
 
 }  // namespace porofit::units

@@ -96,4 +96,15 @@ std::optional<UnitExpression> ParseUnitExpression(std::string_view text) {
   return out;
 }
 
+void RequirePlausibleText(units::Measured m, const std::string& label, const std::string& text, double si,
+                          const SourceLocation& at) {
+  if (auto nt = SplitNumberUnit(text)) units::RequirePlausible(m, label, nt->value, nt->unit, si, false, at);
+}
+
+void RequirePlausibleSigmaText(units::Measured m, const std::string& label, const std::string& text,
+                               double sigma_si, double value_si, const SourceLocation& at) {
+  if (auto nt = SplitNumberUnit(text))
+    units::RequirePlausibleSigma(m, label, nt->value, nt->unit, sigma_si, value_si, false, at);
+}
+
 }  // namespace porofit::io::detail

@@ -74,9 +74,10 @@ void RequirePlausible(Measured m, std::string_view label, double written, std::s
                       double si_value, bool column, const SourceLocation& at);
 
 /// Checks a 1-sigma uncertainty. Relative (written_unit "%"): at most 100 % of
-/// the value. Absolute: inside the range of its quantity and, except for
-/// strain (whose value can be 0), at most |value_si|. A larger sigma names the
-/// unit in which it would be plausible.
+/// the value. Absolute: at most the upper end of its quantity's range and,
+/// except for strain (whose value can be 0), at most |value_si| (no lower
+/// limit: a sigma is small by nature). A larger sigma names the unit in which
+/// it would be plausible.
 void RequirePlausibleSigma(Measured m, std::string_view label, double written, std::string_view written_unit,
                            double sigma_si, double value_si, bool column, const SourceLocation& at);
 
