@@ -79,6 +79,7 @@ void AlphaBlock(const StudySample& ss, const SampleRun& sr, const FitResult* bes
   out << ")";
   if (ss.fluid) out << "; K_f = " << Fmt("%.2f", ss.fluid->k_f / units::kGPa) << " ± " << Fmt("%.2f", ss.fluid->sigma / units::kGPa) << " GPa";
   out << "\n";
+  if (const std::string w = detail::KDryAboveKsWarning(ss, sr); !w.empty()) out << "  WARNING: " << w << "\n";
   if (best == nullptr) {
     out << "  alpha: no converged fit to evaluate.\n";
     return;
