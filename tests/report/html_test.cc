@@ -409,5 +409,19 @@ TEST(KDryAboveKs, NoWarningWhenKDryStaysBelowKs) {
   EXPECT_EQ(summary.str().find("K_dry reaches or exceeds K_s"), std::string::npos);
 }
 
+// Human-facing numbers are rounded: no 7+ decimals, no 9+ digit runs, no
+// printf exponents ("2.07496e+10"), no "+-" in the summary of the sample study.
+TEST(SummaryNumbers, AreRoundedToMeaningfulDigits) {
+  std::ostringstream summary;
+  WriteSummary(SampleRun(), summary);
+  const std::string s = summary.str();
+  std::smatch m;
+  EXPECT_FALSE(std::regex_search(s, m, std::regex("[0-9]\\.[0-9]{7,}"))) << m.str(0);
+  EXPECT_FALSE(std::regex_search(s, m, std::regex("[0-9]{9,}"))) << m.str(0);
+  EXPECT_FALSE(std::regex_search(s, m, std::regex("[0-9]e[+-][0-9]"))) << m.str(0);
+  EXPECT_EQ(s.find("+-"), std::string::npos);
+  EXPECT_NE(s.find("K_s = "), std::string::npos);
+}
+
 }  // namespace
 }  // namespace porofit
