@@ -52,3 +52,25 @@ TEST(InputError, MessageIsValidUtf8WhateverTheInput) {
 }
 
 }  // namespace porofit
+
+namespace porofit {
+
+// Human-facing numbers: meaningful digits, never a 16-digit double.
+TEST(FormatRounded, KeepsSignificantDigitsAndTrailingZeros) {
+  EXPECT_EQ(FormatRounded(0.9900855958079328), "0.990");
+  EXPECT_EQ(FormatRounded(20.7496), "20.7");
+  EXPECT_EQ(FormatRounded(9.996), "10.0");
+  EXPECT_EQ(FormatRounded(3.2e6), "3.20e6");
+  EXPECT_EQ(FormatRounded(-0.000012345), "-1.23e-5");
+  EXPECT_EQ(FormatRounded(0.0), "0");
+  EXPECT_EQ(FormatRounded(1234.5, 3), "1230");
+}
+
+TEST(FormatPlusMinus, RoundsTheValueToTheErrorsPlace) {
+  EXPECT_EQ(FormatPlusMinus(20.7496, 4.91871), "20.7 ± 4.9");
+  EXPECT_EQ(FormatPlusMinus(0.6512, 0.0123), "0.651 ± 0.012");
+  EXPECT_EQ(FormatPlusMinus(812.4, 96.2), "812 ± 96");
+  EXPECT_EQ(FormatPlusMinus(5.0, 0.0), "5.00 ± ?");
+}
+
+}  // namespace porofit

@@ -143,7 +143,7 @@ TEST(CheckBiotCoefficient, FlagsAlphaBelowPorosityAndBelowHashinShtrikmanLimit) 
   EXPECT_FALSE(c.above_one);
   EXPECT_FALSE(c.k_dry_not_below_k_s);
   ASSERT_EQ(c.Messages().size(), 2u);
-  EXPECT_NE(c.Messages()[0].find("is below porosity 0.2"), std::string::npos) << c.Messages()[0];
+  EXPECT_NE(c.Messages()[0].find("is below porosity 0.200"), std::string::npos) << c.Messages()[0];
   EXPECT_NE(c.Messages()[1].find("hashin-shtrikman limit"), std::string::npos) << c.Messages()[1];
 }
 

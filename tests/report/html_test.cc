@@ -390,3 +390,58 @@ TEST(HtmlDepthSection, FieldUnitsShowFeetAndPsi) {
 
 }  // namespace
 }  // namespace porofit
+
+namespace porofit {
+namespace {
+
+// K_dry above K_s inside the data (here: a grain modulus below the plug's own
+// stiffest points) is a warning in the summary and in the report, not only a
+// flag in alpha.csv.
+TEST(KDryAboveKs, IsAWarningInTheSummaryAndTheReport) {
+  const std::string text = R"(name: K_dry above K_s
+samples:
+  - id: S1
+    lithology: clean sandstone
+    porosity: 0.2
+    bulk_density: 2.12 g/cc
+    measurement: static
+    data:
+      columns: [P MPa, K GPa]
+      rows: [[5, 20.1], [10, 26.0], [20, 31.2], [30, 33.6], [40, 34.9], [60, 35.8]]
+    models: [exp-modulus]
+    grain_modulus:
+      measured: {K_s: 30 GPa, sigma: 1 GPa, source: invented for this test}
+)";
+  const StudyRun run = RunStudy(ParseStudy(text, "kdry.yaml", ModelRegistry::Builtin()), Fixed(1));
+  std::ostringstream summary, html;
+  WriteSummary(run, summary);
+  WriteHtmlReport(run, {}, html);
+  const std::string expected = "K_dry reaches or exceeds K_s = 30.0 ± 1.0 GPa inside the data range (data: 4 of 6 points";
+  EXPECT_NE(summary.str().find("  WARNING: " + expected), std::string::npos) << summary.str();
+  EXPECT_NE(html.str().find("<strong>Warning:</strong> " + expected), std::string::npos);
+  EXPECT_NE(summary.str().find("fits: exp-modulus at "), std::string::npos) << summary.str();
+}
+
+TEST(KDryAboveKs, NoWarningWhenKDryStaysBelowKs) {
+  const StudyRun& run = SampleRun();
+  std::ostringstream summary;
+  WriteSummary(run, summary);
+  EXPECT_EQ(summary.str().find("K_dry reaches or exceeds K_s"), std::string::npos);
+}
+
+// Human-facing numbers are rounded: no 7+ decimals, no 9+ digit runs, no
+// printf exponents ("2.07496e+10"), no "+-" in the summary of the sample study.
+TEST(SummaryNumbers, AreRoundedToMeaningfulDigits) {
+  std::ostringstream summary;
+  WriteSummary(SampleRun(), summary);
+  const std::string s = summary.str();
+  std::smatch m;
+  EXPECT_FALSE(std::regex_search(s, m, std::regex("[0-9]\\.[0-9]{7,}"))) << m.str(0);
+  EXPECT_FALSE(std::regex_search(s, m, std::regex("[0-9]{9,}"))) << m.str(0);
+  EXPECT_FALSE(std::regex_search(s, m, std::regex("[0-9]e[+-][0-9]"))) << m.str(0);
+  EXPECT_EQ(s.find("+-"), std::string::npos);
+  EXPECT_NE(s.find("K_s = "), std::string::npos);
+}
+
+}  // namespace
+}  // namespace porofit

@@ -20,8 +20,8 @@ TEST(Summary, ShowsEachFitWithStatusParametersAndTheCaution) {
   EXPECT_NE(s.find(CautionText()), std::string::npos);
   EXPECT_NE(s.find("invented"), std::string::npos);
   EXPECT_NE(s.find("Sample PLUG-1"), std::string::npos);
-  EXPECT_NE(s.find("K_inf = 20 ± 0.5 GPa"), std::string::npos) << s;
-  EXPECT_NE(s.find("P_close = 10 ± 2 MPa"), std::string::npos) << s;
+  EXPECT_NE(s.find("K_inf = 20.00 ± 0.50 GPa"), std::string::npos) << s;  // rounded to the error's digits
+  EXPECT_NE(s.find("P_close = 10.0 ± 2.0 MPa"), std::string::npos) << s;
   EXPECT_NE(s.find("exp-modulus    converged"), std::string::npos) << s;
   EXPECT_NE(s.find("power-ref      too-few-points"), std::string::npos) << s;
   EXPECT_NE(s.find("! 3 points for 2 free parameters"), std::string::npos) << s;

@@ -2,6 +2,8 @@
 
 #include <algorithm>
 #include <charconv>
+#include <cmath>
+#include <cstdio>
 #include <vector>
 
 namespace porofit {
@@ -74,6 +76,58 @@ std::string FormatNumber(double value) {
   auto [ptr, ec] = std::to_chars(buf, buf + sizeof buf, value);
   if (ec != std::errc()) return "?";
   return std::string(buf, ptr);
+}
+
+namespace {
+
+std::string Fixed(double v, int decimals) {
+  char buf[64];
+  std::snprintf(buf, sizeof buf, "%.*f", std::max(0, decimals), v);
+  std::string s = buf;
+  if (s.find_first_not_of("-0.") == std::string::npos && s.front() == '-') s.erase(0, 1);  // no "-0.00"
+  return s;
+}
+
+std::string Scientific(double v, int significant) {
+  char buf[64];
+  std::snprintf(buf, sizeof buf, "%.*e", std::max(0, significant - 1), v);
+  std::string s = buf;  // 3.20e+06 -> 3.20e6
+  const size_t e = s.find('e');
+  std::string exp = s.substr(e + 1);
+  const bool negative = exp[0] == '-';
+  exp.erase(0, 1);
+  while (exp.size() > 1 && exp[0] == '0') exp.erase(0, 1);
+  return s.substr(0, e) + "e" + (negative ? "-" : "") + exp;
+}
+
+// Decimals that keep `significant` digits of v in fixed notation.
+int DecimalsFor(double v, int significant) {
+  return significant - 1 - static_cast<int>(std::floor(std::log10(std::fabs(v))));
+}
+
+}  // namespace
+
+std::string FormatRounded(double value, int significant) {
+  if (std::isnan(value)) return "nan";
+  if (std::isinf(value)) return value > 0 ? "inf" : "-inf";
+  if (value == 0) return "0";
+  const double a = std::fabs(value);
+  if (a < 1e-4 || a >= 1e6) return Scientific(value, significant);
+  // Round first so that 9.996 with 3 digits becomes 10.0, not 10.00.
+  const int d = DecimalsFor(value, significant);
+  const double scale = std::pow(10.0, d);
+  const double rounded = std::round(value * scale) / scale;
+  return Fixed(rounded, rounded == 0 ? d : DecimalsFor(rounded, significant));
+}
+
+std::string FormatPlusMinus(double value, double error) {
+  if (!(std::isfinite(error) && error > 0) || !std::isfinite(value)) return FormatRounded(value) + " ± ?";
+  const double a = std::max(std::fabs(value), error);
+  if (a < 1e-4 || a >= 1e6) return Scientific(value, 3) + " ± " + Scientific(error, 2);
+  const int d = DecimalsFor(std::round(error * std::pow(10.0, DecimalsFor(error, 2))) /
+                                std::pow(10.0, DecimalsFor(error, 2)),
+                            2);
+  return Fixed(value, d) + " ± " + Fixed(error, d);
 }
 
 int EditDistance(const std::string& a, const std::string& b) {

@@ -3,6 +3,7 @@
 #include <cstdio>
 #include <cmath>
 
+#include "porofit/core/error.h"
 #include "table_internal.h"
 
 namespace porofit::depth::detail {
@@ -170,9 +171,11 @@ std::vector<std::string> DescribeAssumptions(const DepthTableSpec& s) {
     a.push_back("no mapping rule: every row in rock is unmapped (no K or alpha)");
   }
   for (const FittedCurve& c : s.curves)
-    a.push_back("curve " + CurveLabel(c) + ": K_s = " + Num(c.k_s) + " +- " + Num(c.sigma_k_s) + " Pa, porosity " +
-                (std::isnan(c.porosity) ? std::string("unknown (alpha checked against 0 instead)") : Num(c.porosity)) +
-                ", lab pressures " + Num(c.lab_min) + " to " + Num(c.lab_max) + " Pa");
+    a.push_back("curve " + CurveLabel(c) + ": K_s = " + porofit::FormatPlusMinus(c.k_s / 1e9, c.sigma_k_s / 1e9) +
+                " GPa, porosity " +
+                (std::isnan(c.porosity) ? std::string("unknown (alpha checked against 0 instead)")
+                                        : porofit::FormatRounded(c.porosity)) +
+                ", lab pressures " + porofit::FormatRounded(c.lab_min / 1e6) + " to " + porofit::FormatRounded(c.lab_max / 1e6) + " MPa");
 
   // Depletion.
   for (const DepletionScenario& sc : s.depletion)

@@ -773,7 +773,7 @@ FitResult Fit(const FitRequest& req) {
     } else {
       scale2 = variance_factor = kNaN;
       if (r.dof > 0)
-        r.warnings.push_back("mean psi' = " + FormatNumber(mean_dpsi) +
+        r.warnings.push_back("mean psi' = " + FormatRounded(mean_dpsi) +
                              " is not positive: most points lie in the loss's descending part, no robust scale");
     }
   }
@@ -818,9 +818,9 @@ FitResult Fit(const FitRequest& req) {
   for (int j = 0; j < s.np; ++j) {
     const ParameterResult& q = r.parameters[j];
     if (q.at_lower)
-      r.warnings.push_back(q.name + " = " + FormatNumber(theta[j]) + " " + q.unit + " is at its lower bound");
+      r.warnings.push_back(q.name + " = " + FormatRounded(theta[j], 4) + " " + q.unit + " is at its lower bound");
     if (q.at_upper)
-      r.warnings.push_back(q.name + " = " + FormatNumber(theta[j]) + " " + q.unit + " is at its upper bound");
+      r.warnings.push_back(q.name + " = " + FormatRounded(theta[j], 4) + " " + q.unit + " is at its upper bound");
   }
   // Closure-pressure identifiability (domain brief §3, M1: outside [P_min/3, 3 P_max] is weakly determined).
   const bool closure_free = m.closure_parameter < 0 || m.closure_parameter >= s.np || !s.fixed[m.closure_parameter];
@@ -832,13 +832,13 @@ FitResult Fit(const FitRequest& req) {
       r.closure_outside_range = true;
       const std::string label =
           m.closure_parameter >= 0 ? ParamLabel(m, m.closure_parameter) : std::string("closure pressure");
-      r.warnings.push_back(label + " = " + FormatNumber(pc) + " " + m.x_unit + " is outside [P_min/" +
-                           FormatNumber(f) + ", " + FormatNumber(f) + " P_max] = [" + FormatNumber(pmin / f) +
-                           ", " + FormatNumber(f * pmax) + "] " + m.x_unit + ": the data barely constrain it");
+      r.warnings.push_back(label + " = " + FormatRounded(pc) + " " + m.x_unit + " is outside [P_min/" +
+                           FormatNumber(f) + ", " + FormatNumber(f) + " P_max] = [" + FormatRounded(pmin / f) +
+                           ", " + FormatRounded(f * pmax) + "] " + m.x_unit + ": the data barely constrain it");
     }
   }
   if (r.high_correlation)
-    r.warnings.push_back("|correlation| = " + FormatNumber(r.max_abs_correlation) + " exceeds " +
+    r.warnings.push_back("|correlation| = " + FormatRounded(r.max_abs_correlation) + " exceeds " +
                          FormatNumber(opt.correlation_threshold) + ": parameters are not separately identifiable");
   if (r.rank_deficient)
     r.warnings.push_back("J^T W J is rank deficient (reciprocal condition below " +

@@ -506,7 +506,7 @@ JointFitResult FitJoint(const JointFitRequest& req) {
     for (int a = 0; a < s.nc; ++a) r.coordinates[static_cast<size_t>(a)].std_error = std::sqrt(r.covariance(a, a));
     Correlations(r.covariance, r.correlation, r.max_abs_correlation);
     if (r.max_abs_correlation > opt.correlation_threshold)
-      r.warnings.push_back("|correlation| = " + FormatNumber(r.max_abs_correlation) + " exceeds " +
+      r.warnings.push_back("|correlation| = " + FormatRounded(r.max_abs_correlation) + " exceeds " +
                            FormatNumber(opt.correlation_threshold) + ": parameters are not separately identifiable");
     if (r.rank_deficient)
       r.warnings.push_back("J^T W J of the joint fit is rank deficient (reciprocal condition below " +

@@ -104,4 +104,15 @@ void CheckUnitInRange(const UnitExpression& u, const std::string& unit, const st
                            FormatNumber(u.pressure_exponent) + "); use a smaller exponent");
 }
 
+void RequirePlausibleText(units::Measured m, const std::string& label, const std::string& text, double si,
+                          const SourceLocation& at) {
+  if (auto nt = SplitNumberUnit(text)) units::RequirePlausible(m, label, nt->value, nt->unit, si, false, at);
+}
+
+void RequirePlausibleSigmaText(units::Measured m, const std::string& label, const std::string& text,
+                               double sigma_si, double value_si, const SourceLocation& at) {
+  if (auto nt = SplitNumberUnit(text))
+    units::RequirePlausibleSigma(m, label, nt->value, nt->unit, sigma_si, value_si, false, at);
+}
+
 }  // namespace porofit::io::detail

@@ -5,6 +5,7 @@
 #include <string_view>
 
 #include "porofit/core/error.h"
+#include "porofit/core/plausible.h"
 
 namespace porofit::io::detail {
 
@@ -35,5 +36,14 @@ std::optional<UnitExpression> ParseUnitExpression(std::string_view text);
 /// be used. `unit` is the text as written, `of` names its owner.
 void CheckUnitInRange(const UnitExpression& u, const std::string& unit, const std::string& of,
                       const SourceLocation& at);
+/// The plausible-range check (porofit/core/plausible.h) of one value written
+/// as `text` ("3.2e6 GPa") at `at`, already converted to `si`; throws
+/// InputError naming the likely unit slip. Text that is not a number is left
+/// to the caller's own rules.
+void RequirePlausibleText(units::Measured m, const std::string& label, const std::string& text, double si,
+                          const SourceLocation& at);
+/// The same for a 1-sigma uncertainty of `value_si` ("%" or absolute).
+void RequirePlausibleSigmaText(units::Measured m, const std::string& label, const std::string& text,
+                               double sigma_si, double value_si, const SourceLocation& at);
 
 }  // namespace porofit::io::detail

@@ -13,6 +13,7 @@
 #include <unordered_set>
 
 #include "porofit/core/input_file.h"
+#include "porofit/core/plausible.h"
 #include "porofit/core/units.h"
 #include "porofit/io/csv.h"
 #include "csv_columns.h"
@@ -89,6 +90,11 @@ double Cell(const csv::Row& row, const NumColumn& c, const std::string& file) {
     throw InputError(at, c.name + " = " + text + " " + c.unit +
                              " is out of range: not a finite number once converted to SI units");
   return v * c.factor;
+}
+
+// Plausible-range check (porofit/core/plausible.h) of a cell already converted to `si`.
+void Plausible(const csv::Row& row, const NumColumn& c, const std::string& file, units::Measured m, double si) {
+  units::RequirePlausible(m, c.name, si / c.factor, c.unit, si, true, row.Where(file, static_cast<size_t>(c.index)));
 }
 
 template <class E>
@@ -344,9 +350,11 @@ void ReadSampleTable(const Field& table, const std::string& study_file, const Mo
     if (!(s.porosity >= 0 && s.porosity < 1))
       throw InputError(at(porosity.index), "porosity = " + text(porosity.index) +
                                                (porosity.unit.empty() ? "" : " " + porosity.unit) + " is outside [0, 1)");
+    Plausible(row, porosity, sf, units::Measured::kPorosity, s.porosity);
     s.bulk_density = Cell(row, density, sf);
     if (!(s.bulk_density > 0))
       throw InputError(at(density.index), "bulk_density = " + text(density.index) + " " + density.unit + " must be > 0");
+    Plausible(row, density, sf, units::Measured::kDensity, s.bulk_density);
     if (c_meas >= 0 && !text(c_meas).empty()) {
       s.kind = Choice<MeasurementKind>(text(c_meas), at(c_meas), "measurement",
                                        {{"static", MeasurementKind::kStatic}, {"dynamic", MeasurementKind::kDynamic}});
@@ -446,13 +454,16 @@ void ReadSampleTable(const Field& table, const std::string& study_file, const Mo
     if (p) {
       pt.pressure = Cell(row, p, df);
       nonnegative(p, pt.pressure);
+      Plausible(row, p, df, units::Measured::kPressure, pt.pressure);
       pt.confining = pt.pressure;
     } else {
       pt.confining = Cell(row, pc, df);
       nonnegative(pc, pt.confining);
+      Plausible(row, pc, df, units::Measured::kPressure, pt.confining);
       if (pp) {
         pt.pore = Cell(row, pp, df);
         nonnegative(pp, pt.pore);
+        Plausible(row, pp, df, units::Measured::kPressure, pt.pore);
       }
       pt.pressure = pt.confining - s.effective_pressure_coefficient * pt.pore;
       if (!(pt.pressure >= 0))
@@ -463,12 +474,15 @@ void ReadSampleTable(const Field& table, const std::string& study_file, const Mo
     if (!(pt.modulus > 0))
       throw InputError(row.Where(df, static_cast<size_t>(k.index)),
                        "K = " + row.fields[static_cast<size_t>(k.index)] + " " + k.unit + " must be > 0");
+    Plausible(row, k, df, units::Measured::kModulus, pt.modulus);
     if (has_sigma) {
       const double v = Cell(row, sk, df);
       pt.sigma = sk.relative ? v * std::fabs(pt.modulus) : v;
       if (!(std::isfinite(pt.sigma) && pt.sigma > 0))
         throw InputError(row.Where(df, static_cast<size_t>(sk.index)),
                          "sigma_K = " + row.fields[static_cast<size_t>(sk.index)] + " " + sk.unit + " must be > 0");
+      units::RequirePlausibleSigma(units::Measured::kModulus, "sigma_K", v / sk.factor, sk.unit, pt.sigma, pt.modulus,
+                                   true, row.Where(df, static_cast<size_t>(sk.index)));
     }
     s.points.push_back(std::move(pt));
   }

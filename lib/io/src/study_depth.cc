@@ -89,6 +89,13 @@ double Positive(const Field& f, Quantity q) {
   return v;
 }
 
+// A density of the overburden or the sea: > 0 and in the plausible range (porofit/core/plausible.h).
+double Density(const Field& f) {
+  const double v = Positive(f, Quantity::kDensity);
+  RequirePlausibleText(units::Measured::kDensity, f.path, f.Scalar(), v, f.at);
+  return v;
+}
+
 void Require(const Field& f, const MapReader& m, const std::string& path) {
   if (!f) throw InputError(m.at(), "missing required key " + Quote(path) + " in " + m.what());
 }
@@ -211,7 +218,7 @@ depth::Datum ReadDatum(const Field& f, const std::string& file) {
     if (!water_density)
       throw InputError(m.at(), "offshore datum (water_depth " + water_depth.Scalar() +
                                    ") needs 'water_density' (e.g. 1.03 g/cc); it is never defaulted");
-    d.water_density = Positive(water_density, Quantity::kDensity);
+    d.water_density = Density(water_density);
   } else if (water_density) {
     throw InputError(water_density.key_at, Quote(water_density.path) + " needs a 'water_depth' > 0");
   }
@@ -246,7 +253,7 @@ depth::OverburdenSpec ReadOverburden(const Field& f, const std::string& file, co
       l.Finish();
       Require(base, l, p + ".base");
       Require(density, l, p + ".density");
-      depth::DensityLayer x{Qty(base, Quantity::kLength), Positive(density, Quantity::kDensity)};
+      depth::DensityLayer x{Qty(base, Quantity::kLength), Density(density)};
       const double above = o.layers.empty() ? rock_top : o.layers.back().base;
       if (!(x.base > above))
         throw InputError(base.at, Quote(base.path) + " = " + base.Scalar() + " must be below " +
@@ -297,7 +304,7 @@ depth::OverburdenSpec ReadOverburden(const Field& f, const std::string& file, co
       if (!trend.depth.empty() && !(z > trend.depth.back()))
         throw InputError(d.at, Quote(d.path) + " = " + d.Scalar() + " must be below the previous point");
       trend.depth.push_back(z);
-      trend.density.push_back(Positive(rho, Quantity::kDensity));
+      trend.density.push_back(Density(rho));
       words += (words.empty() ? "" : ", ") + rho.Scalar() + " at " + d.Scalar();
     }
     trend.description = "user fill trend " + words + (trend.depth.size() == 1 ? " (constant)" : " (linear between)");

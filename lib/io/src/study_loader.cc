@@ -13,6 +13,7 @@
 
 #include "porofit/core/dynamic.h"
 #include "porofit/core/input_file.h"
+#include "porofit/core/plausible.h"
 #include "porofit/core/units.h"
 #include "porofit/io/csv.h"
 #include "porofit/models/strain_form.h"
@@ -32,6 +33,9 @@ namespace {
 
 using io::detail::Field;
 using io::detail::ParseChoice;
+using io::detail::RequirePlausibleSigmaText;
+using io::detail::RequirePlausibleText;
+using units::Measured;
 using io::detail::MapReader;
 using io::detail::SplitNumberUnit;
 using io::detail::TypeName;
@@ -92,6 +96,8 @@ double ParseQuantity(const Field& f, Quantity q) {
 struct Sigma {
   double value = 0;  // SI if absolute, fraction if relative
   bool relative = false;
+  std::string path, text;  // as written, for the plausible-range check against each value
+  SourceLocation at;
   double Of(double x) const { return relative ? value * std::fabs(x) : value; }
 };
 
@@ -111,6 +117,7 @@ Sigma ParseSigma(const Field& f, Quantity q, bool strain = false) {
   }
   if (!(std::isfinite(s.value) && s.value > 0))
     throw InputError(f.at, Quote(f.path) + " = " + text + " must be > 0");
+  s.path = f.path, s.text = text, s.at = f.at;
   return s;
 }
 
@@ -334,23 +341,24 @@ enum Role { kPc, kPp, kP, kK, kVp, kVs, kRho, kSigmaK, kSigmaVp, kSigmaVs, kSigm
 struct RoleInfo {
   const char* name;
   Quantity quantity;
-  bool sigma;  // may be given in '%'
+  bool sigma;         // may be given in '%'
+  Measured measured;  // plausible range (porofit/core/plausible.h); of the value it qualifies for a sigma
 };
 
 constexpr std::array<RoleInfo, kNumRoles> kRoles = {{
-    {"P_c", Quantity::kPressure, false},
-    {"P_p", Quantity::kPressure, false},
-    {"P", Quantity::kPressure, false},
-    {"K", Quantity::kModulus, false},
-    {"Vp", Quantity::kVelocity, false},
-    {"Vs", Quantity::kVelocity, false},
-    {"rho", Quantity::kDensity, false},
-    {"sigma_K", Quantity::kModulus, true},
-    {"sigma_Vp", Quantity::kVelocity, true},
-    {"sigma_Vs", Quantity::kVelocity, true},
-    {"sigma_rho", Quantity::kDensity, true},
-    {"eps_v", Quantity::kDimensionless, false},     // strain units: strain_columns.h
-    {"sigma_eps", Quantity::kDimensionless, true},
+    {"P_c", Quantity::kPressure, false, Measured::kPressure},
+    {"P_p", Quantity::kPressure, false, Measured::kPressure},
+    {"P", Quantity::kPressure, false, Measured::kPressure},
+    {"K", Quantity::kModulus, false, Measured::kModulus},
+    {"Vp", Quantity::kVelocity, false, Measured::kVelocity},
+    {"Vs", Quantity::kVelocity, false, Measured::kVelocity},
+    {"rho", Quantity::kDensity, false, Measured::kDensity},
+    {"sigma_K", Quantity::kModulus, true, Measured::kModulus},
+    {"sigma_Vp", Quantity::kVelocity, true, Measured::kVelocity},
+    {"sigma_Vs", Quantity::kVelocity, true, Measured::kVelocity},
+    {"sigma_rho", Quantity::kDensity, true, Measured::kDensity},
+    {"eps_v", Quantity::kDimensionless, false, Measured::kStrain},     // strain units: strain_columns.h
+    {"sigma_eps", Quantity::kDimensionless, true, Measured::kStrain},
 }};
 
 struct Column {
@@ -569,8 +577,13 @@ std::vector<poro::Mineral> ReadMinerals(const Field& f, const std::string& file)
     if (!(x.bulk > 0)) throw InputError(bulk.at, Quote(bulk.path) + " = " + bulk.Scalar() + " must be > 0");
     if (!(x.shear >= 0)) throw InputError(shear.at, Quote(shear.path) + " = " + shear.Scalar() + " must be >= 0");
     if (!(x.density > 0)) throw InputError(density.at, Quote(density.path) + " = " + density.Scalar() + " must be > 0");
+    RequirePlausibleText(Measured::kModulus, bulk.path, bulk.Scalar(), x.bulk, bulk.at);
+    RequirePlausibleText(Measured::kModulus, shear.path, shear.Scalar(), x.shear, shear.at);
+    RequirePlausibleText(Measured::kDensity, density.path, density.Scalar(), x.density, density.at);
     x.sigma_bulk = ParseSigmaOf(sb, Quantity::kModulus, x.bulk);
     x.sigma_shear = ParseSigmaOf(ss, Quantity::kModulus, x.shear);
+    RequirePlausibleSigmaText(Measured::kModulus, sb.path, sb.Scalar(), x.sigma_bulk, x.bulk, sb.at);
+    RequirePlausibleSigmaText(Measured::kModulus, ss.path, ss.Scalar(), x.sigma_shear, x.shear, ss.at);
     if (clay) x.clay = clay.Boolean();
     x.source = RequiredText(source, m, what + " (a literature reference with its reliability)");
     out.push_back(std::move(x));
@@ -605,14 +618,18 @@ GrainModulusChoice ReadGrainSpec(const Field& f, const std::string& file, const 
                                    " (its 1-sigma; K_s uncertainty often dominates alpha's)");
     const double k = ParseQuantity(ks, Quantity::kModulus);
     if (!(k > 0)) throw InputError(ks.at, Quote(ks.path) + " = " + ks.Scalar() + " must be > 0");
+    RequirePlausibleText(Measured::kModulus, ks.path, ks.Scalar(), k, ks.at);
     const double s = ParseSigmaOf(sigma, Quantity::kModulus, k);
+    RequirePlausibleSigmaText(Measured::kModulus, sigma.path, sigma.Scalar(), s, k, sigma.at);
     std::optional<double> mu_s;
     double s_mu = 0;
     if (smu && !mu) throw InputError(smu.key_at, Quote(smu.path) + " is given without 'mu_s'");
     if (mu) {
       mu_s = ParseQuantity(mu, Quantity::kModulus);
       if (!(*mu_s > 0)) throw InputError(mu.at, Quote(mu.path) + " = " + mu.Scalar() + " must be > 0");
+      RequirePlausibleText(Measured::kModulus, mu.path, mu.Scalar(), *mu_s, mu.at);
       if (smu) s_mu = ParseSigmaOf(smu, Quantity::kModulus, *mu_s);
+      if (smu) RequirePlausibleSigmaText(Measured::kModulus, smu.path, smu.Scalar(), s_mu, *mu_s, smu.at);
     }
     g.sources.push_back(RequiredText(source, r, what + " (e.g. 'unjacketed test, lab sheet 12')"));
     g.value = poro::MeasuredGrainModulus(k, s, mu_s, s_mu, r.at());
@@ -671,7 +688,9 @@ FluidModulus ReadFluid(const Field& f, const std::string& file, const std::strin
   out.where = m.at();
   out.k_f = ParseQuantity(kf, Quantity::kModulus);
   if (!(out.k_f > 0)) throw InputError(kf.at, Quote(kf.path) + " = " + kf.Scalar() + " must be > 0");
+  RequirePlausibleText(Measured::kFluidModulus, kf.path, kf.Scalar(), out.k_f, kf.at);
   out.sigma = ParseSigmaOf(sigma, Quantity::kModulus, out.k_f);
+  RequirePlausibleSigmaText(Measured::kFluidModulus, sigma.path, sigma.Scalar(), out.sigma, out.k_f, sigma.at);
   if (source) out.source = source.Scalar();
   return out;
 }
@@ -707,6 +726,7 @@ std::vector<VtiPoint> ReadVti(const Field& f, const std::string& file, const std
   static const std::vector<std::string> kNames = {"P", "C11", "C12", "C13", "C33"};
   std::array<int, 5> index{-1, -1, -1, -1, -1};
   std::vector<double> factor(cols.node.size(), 1.0);
+  std::vector<std::string> unit_of(cols.node.size());
   for (size_t i = 0; i < cols.node.size(); ++i) {
     const YAML::Node c = cols.node[i];
     const SourceLocation at = Where(file, c.Mark());
@@ -728,6 +748,7 @@ std::vector<VtiPoint> ReadVti(const Field& f, const std::string& file, const std
       throw InputError(at, "column " + Quote(name) + " needs a unit (e.g. '" + name + (k == 0 ? " MPa'" : " GPa'") + ")");
     const std::string unit = text.substr(text.find_first_not_of(" \t", sp));
     factor[i] = UnitFactor(unit, k == 0 ? Quantity::kPressure : Quantity::kModulus, "column " + Quote(name), at);
+    unit_of[i] = unit;
     index[static_cast<size_t>(k)] = static_cast<int>(i);
   }
   for (size_t j = 0; j < kNames.size(); ++j)
@@ -755,6 +776,8 @@ std::vector<VtiPoint> ReadVti(const Field& f, const std::string& file, const std
       if (j == 0 ? !(v[j] >= 0) : !(v[j] > 0))
         throw InputError(Where(file, cell.Mark()), kNames[j] + " = " + cell.Scalar() +
                                                        (j == 0 ? " is negative; pressures must be >= 0" : " must be > 0"));
+      units::RequirePlausible(j == 0 ? Measured::kPressure : Measured::kModulus, kNames[j], x, unit_of[col], v[j],
+                              true, Where(file, cell.Mark()));
     }
     out.push_back({v[0], v[1], v[2], v[3], v[4], at});
   }
@@ -1153,13 +1176,17 @@ void Loader::ReadSample(const YAML::Node& node, size_t index) {
     if (!nt->unit.empty()) factor = UnitFactor(nt->unit, Quantity::kDimensionless, "porosity", porosity.at);
     s.porosity = nt->value * factor;
     if (!(std::isfinite(s.porosity) && s.porosity >= 0 && s.porosity < 1))
-      throw InputError(porosity.at, "porosity = " + text + " is outside [0, 1)");
+      throw InputError(porosity.at, "porosity = " + text + " is outside [0, 1)" +
+                                        (s.porosity >= 1 ? units::SlipHint(Measured::kPorosity, nt->value, factor, false)
+                                                         : std::string()));
+    RequirePlausibleText(Measured::kPorosity, "porosity", text, s.porosity, porosity.at);
   }
 
   require(density);
   s.bulk_density = ParseQuantity(density, Quantity::kDensity);
   if (!(s.bulk_density > 0))
     throw InputError(density.at, "bulk_density = " + density.Scalar() + " must be > 0");
+  RequirePlausibleText(Measured::kDensity, "bulk_density", density.Scalar(), s.bulk_density, density.at);
 
   if (orientation)
     s.orientation = ParseChoice<Orientation>(orientation, {{"vertical", Orientation::kVertical},
@@ -1193,6 +1220,7 @@ void Loader::ReadSample(const YAML::Node& node, size_t index) {
     constant_pore = ParseQuantity(pore_pressure, Quantity::kPressure);
     if (!(*constant_pore >= 0))
       throw InputError(pore_pressure.at, "pore_pressure = " + pore_pressure.Scalar() + " must be >= 0");
+    RequirePlausibleText(Measured::kPressure, "pore_pressure", pore_pressure.Scalar(), *constant_pore, pore_pressure.at);
   }
 
   // Uncertainties declared for the whole sample.
@@ -1313,6 +1341,18 @@ void Loader::ReadSample(const YAML::Node& node, size_t index) {
     };
     for (Role role : {kPc, kPp, kP}) nonnegative(role);
     for (Role role : {kK, kVp, kVs, kRho, kSigmaK, kSigmaVp, kSigmaVs, kSigmaRho, kSigmaEps}) positive(role);
+    for (Role role : {kPc, kPp, kP, kK, kVp, kVs, kRho, kEpsV})
+      if (const Cell* c = cell(role))
+        units::RequirePlausible(kRoles[role].measured, kRoles[role].name, c->raw, columns[role]->unit, c->value, true,
+                                c->at);
+    // A sigma (column or uncertainty.*) against the value it qualifies: plausible_sigma.
+    auto plausible_sigma = [&](Role sigma_role, const std::optional<Sigma>& u, double value, double sigma) {
+      if (const Cell* c = cell(sigma_role))
+        units::RequirePlausibleSigma(kRoles[sigma_role].measured, kRoles[sigma_role].name, c->raw,
+                                     columns[sigma_role]->unit, sigma, value, true, c->at);
+      else if (u)
+        RequirePlausibleSigmaText(kRoles[sigma_role].measured, u->path, u->text, sigma, value, u->at);
+    };
     if (cell(kP)) {
       p.pressure = cell(kP)->value;
       p.confining = p.pressure;
@@ -1333,12 +1373,14 @@ void Loader::ReadSample(const YAML::Node& node, size_t index) {
       p.strain = cell(kEpsV)->value;
       p.modulus = std::numeric_limits<double>::quiet_NaN();
       p.sigma = sigma_of(kSigmaEps, u_eps, p.strain);
+      plausible_sigma(kSigmaEps, u_eps, p.strain, p.sigma);
       if (has_sigma && !(std::isfinite(p.sigma) && p.sigma > 0))
         throw InputError(r.where, "uncertainty of eps_v = " + FormatNumber(p.sigma) +
                                       " must be > 0 (a relative uncertainty of a zero strain is zero)");
     } else if (!dyn) {
       p.modulus = cell(kK)->value;
       p.sigma = sigma_of(kSigmaK, u_k, p.modulus);
+      plausible_sigma(kSigmaK, u_k, p.modulus, p.sigma);
     } else {
       WaveData w;
       w.vp = cell(kVp)->value;
@@ -1347,6 +1389,9 @@ void Loader::ReadSample(const YAML::Node& node, size_t index) {
       w.sigma_vp = sigma_of(kSigmaVp, u_vp, w.vp);
       w.sigma_vs = sigma_of(kSigmaVs, u_vs, w.vs);
       w.sigma_rho = sigma_of(kSigmaRho, u_rho, w.rho);
+      plausible_sigma(kSigmaVp, u_vp, w.vp, w.sigma_vp);
+      plausible_sigma(kSigmaVs, u_vs, w.vs, w.sigma_vs);
+      plausible_sigma(kSigmaRho, u_rho, w.rho, w.sigma_rho);
       const double ratio = w.vp / w.vs;
       if (!(ratio > kMinVpVsForPositiveBulk))
         throw InputError(r.where, "Vp = " + ShowCell(*cell(kVp), *columns[kVp]) + ", Vs = " +

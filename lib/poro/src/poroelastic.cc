@@ -62,12 +62,13 @@ BiotEstimate BiotCoefficientWithUncertainty(double k_dry, double sigma_k_dry, do
 
 std::vector<std::string> BiotChecks::Messages() const {
   std::vector<std::string> out;
-  if (below_porosity) out.push_back("alpha = " + FormatNumber(alpha) + " is below porosity " + FormatNumber(phi));
-  if (above_one) out.push_back("alpha = " + FormatNumber(alpha) + " is above 1");
+  if (below_porosity) out.push_back("alpha = " + FormatRounded(alpha) + " is below porosity " + FormatRounded(phi));
+  if (above_one) out.push_back("alpha = " + FormatRounded(alpha) + " is above 1");
   if (below_hs_limit)
-    out.push_back("alpha = " + FormatNumber(alpha) + " is below the hashin-shtrikman limit " + FormatNumber(hs_limit));
+    out.push_back("alpha = " + FormatRounded(alpha) + " is below the hashin-shtrikman limit " + FormatRounded(hs_limit));
   if (k_dry_not_below_k_s)
-    out.push_back("k_dry = " + FormatNumber(k_dry) + " is not below k_s = " + FormatNumber(k_s));
+    out.push_back("K_dry = " + FormatRounded(k_dry / 1e9) + " GPa is not below K_s = " + FormatRounded(k_s / 1e9) +
+                  " GPa");
   return out;
 }
 

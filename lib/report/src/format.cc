@@ -2,6 +2,7 @@
 
 #include <cctype>
 #include <charconv>
+#include <algorithm>
 #include <cmath>
 
 #include "porofit/report/report.h"
@@ -117,6 +118,34 @@ std::vector<int> ResidualToPoint(const FitResult& r, const Sample& sample) {
     }
   }
   return map;
+}
+
+std::string KDryAboveKsWarning(const StudySample& ss, const SampleRun& sr) {
+  if (!ss.grain.given) return {};
+  const double k_s = ss.grain.value.k_s;
+  size_t points = 0;
+  for (const DataPoint& p : ss.sample.points) points += std::isfinite(p.modulus) && p.modulus >= k_s ? 1 : 0;
+  std::vector<std::string> fits;
+  for (size_t k = 0; k < sr.bands.size() && k < sr.fits.size(); ++k) {
+    const bands::BandResult& b = sr.bands[k];
+    if (!b.computed) continue;
+    double lo = INFINITY, hi = -INFINITY;
+    for (size_t j = 0; j < b.grid.size() && j < b.flags.size(); ++j) {
+      const bool inside = j >= b.grid.extrapolated.size() || !b.grid.extrapolated[j];
+      if (inside && b.flags[j].k_dry_not_below_k_s) lo = std::min(lo, b.grid.pressure[j]), hi = std::max(hi, b.grid.pressure[j]);
+    }
+    if (lo <= hi)
+      fits.push_back(sr.fits[k].model_id + " at " + FormatRounded(lo / 1e6) + "–" + FormatRounded(hi / 1e6) + " MPa");
+  }
+  if (points == 0 && fits.empty()) return {};
+  std::string where;
+  if (points > 0)
+    where = "data: " + std::to_string(points) + " of " + std::to_string(ss.sample.points.size()) + " points";
+  if (!fits.empty()) where += (where.empty() ? "" : "; ") + std::string("fits: ") + Join(fits, ", ");
+  return "K_dry reaches or exceeds K_s = " + FormatPlusMinus(k_s / 1e9, ss.grain.value.sigma_k_s / 1e9) +
+         " GPa inside the data range (" + where +
+         "): alpha = 1 - K_dry/K_s is 0 or negative there. Check K_s (its source and unit) and the unit of K "
+         "before using alpha [k-dry-not-below-k-s]";
 }
 
 double RelativeErrorPercent(double estimate, double se) {

@@ -7,6 +7,7 @@
 #include "porofit/bands/bands.h"
 #include "porofit/fit/fit_result.h"
 #include "porofit/io/study.h"
+#include "porofit/run/run.h"
 
 namespace porofit::detail {
 
@@ -36,6 +37,11 @@ std::vector<int> ResidualToPoint(const FitResult& r, const Sample& sample);
 /// extrapolated, model-undefined, alpha-below-porosity, alpha-above-one,
 /// alpha-below-hs-limit, k-dry-not-below-k-s.
 std::vector<std::string> PointFlagNames(const bands::PointFlags& f);
+/// The warning that K_dry reaches K_s inside a sample's data range (a data
+/// point's K >= K_s, or a fit flagged k-dry-not-below-k-s at a grid pressure
+/// that is not extrapolated), naming the points and fits; "" when neither
+/// happens or the sample has no K_s. The summary and the HTML report print it.
+std::string KDryAboveKsWarning(const StudySample& ss, const SampleRun& sr);
 /// The statement that K_s correlates alpha errors (printed once per output).
 std::string CorrelationCaveat();
 /// Ids of the other samples in sample i's grain-modulus group.

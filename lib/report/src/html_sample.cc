@@ -195,6 +195,8 @@ void FlagList(const StudySample& ss, const SampleRun& sr, std::ostream& o) {
     }
   }
   o << "<h3>Flags and notes</h3>\n";
+  if (const std::string w = detail::KDryAboveKsWarning(ss, sr); !w.empty())
+    o << "<p class=\"warning\" role=\"alert\"><strong>Warning:</strong> " << Esc(w) << "</p>\n";
   if (items.empty()) {
     o << "<p>No flags raised.</p>\n";
     return;

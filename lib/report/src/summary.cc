@@ -31,13 +31,13 @@ std::string ParameterText(const FitResult& r) {
   if (!has) return {};
   for (const ParameterResult& p : r.parameters) {
     const double est = p.estimate / p.si_factor;
-    std::string s = p.name + " = " + Fmt("%.4g", est);
+    std::string s = p.name + " = ";
     if (p.fixed) {
-      s += " (fixed)";
-    } else if (std::isfinite(p.std_error)) {
-      s += " ± " + Fmt("%.2g", p.std_error / p.si_factor);
+      s += FormatRounded(est, 4) + " (fixed)";
+    } else if (std::isfinite(p.std_error) && p.std_error > 0) {
+      s += FormatPlusMinus(est, p.std_error / p.si_factor);
     } else {
-      s += " ± ?";
+      s += FormatRounded(est, 4) + " ± ?";
     }
     if (p.unit != "1" && !p.unit.empty()) s += " " + p.unit;
     if (!p.fixed && (p.at_lower || p.at_upper)) s += p.at_lower ? " [at lower bound]" : " [at upper bound]";
@@ -73,12 +73,13 @@ void AlphaBlock(const StudySample& ss, const SampleRun& sr, const FitResult* bes
     return;
   }
   const poro::GrainModulus& v = g.value;
-  out << "  K_s = " << Fmt("%.2f", v.k_s / units::kGPa) << " ± " << Fmt("%.2f", v.sigma_k_s / units::kGPa) << " GPa ("
+  out << "  K_s = " << FormatPlusMinus(v.k_s / units::kGPa, v.sigma_k_s / units::kGPa) << " GPa ("
       << poro::ToString(v.method);
   if (!g.group.empty()) out << ", shared group '" << g.group << "'";
   out << ")";
-  if (ss.fluid) out << "; K_f = " << Fmt("%.2f", ss.fluid->k_f / units::kGPa) << " ± " << Fmt("%.2f", ss.fluid->sigma / units::kGPa) << " GPa";
+  if (ss.fluid) out << "; K_f = " << FormatPlusMinus(ss.fluid->k_f / units::kGPa, ss.fluid->sigma / units::kGPa) << " GPa";
   out << "\n";
+  if (const std::string w = detail::KDryAboveKsWarning(ss, sr); !w.empty()) out << "  WARNING: " << w << "\n";
   if (best == nullptr) {
     out << "  alpha: no converged fit to evaluate.\n";
     return;

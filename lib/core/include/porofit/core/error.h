@@ -51,6 +51,16 @@ std::string PrintableText(std::string_view text);
 /// Formats a double the way messages show values: shortest round-trip form.
 std::string FormatNumber(double value);
 
+/// A number for people to read (summary, report, notes): `significant` digits,
+/// trailing zeros kept (0.990), plain decimals for 1e-4 <= |v| < 1e6, else
+/// scientific with a bare exponent (3.2e6). "nan", "inf" for those.
+std::string FormatRounded(double value, int significant = 3);
+
+/// "value ± error" rounded together: the error to 2 significant digits and the
+/// value to the same decimal place ("20.7 ± 4.9"); FormatRounded(value) and
+/// " ± ?" when the error is not finite or not positive.
+std::string FormatPlusMinus(double value, double error);
+
 /// Levenshtein distance, used for "did you mean" suggestions.
 int EditDistance(const std::string& a, const std::string& b);
 
