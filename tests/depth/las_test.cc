@@ -1,8 +1,8 @@
 // The LAS 2.0 reader and the density profile built from a LAS density curve.
 // Rules checked here come from the LAS 2.0 standard of the Canadian Well
 // Logging Society (sections ~V, ~W, ~C, ~A; header-line delimiters) as
-// summarised in the domain brief §6 "LAS 2.0"; the profile rules (bridging,
-// bad-hole screen, fill) from the domain brief §6 "Vertical stress". All well
+// as recalled [from memory] (docs/las.md); the profile rules (bridging,
+// bad-hole screen, fill) from docs/depth-method.md (common practice). All well
 // data below are invented for the tests.
 #include "porofit/depth/las.h"
 
@@ -119,7 +119,7 @@ LasSpec DensityLas(double z0, double z1, double dz, const std::function<double(d
 
 TEST(DensityLog, LinearDensityFromAFileIntegratesToTheAnalyticVerticalStress) {
   // rho(z) = 1900 + 0.25 (z - z0) kg/m^3: S_v = g (1900 h + 0.125 h^2) [calculus; the
-  // trapezoid rule is exact on a linear profile, domain brief §6 "Vertical stress"].
+  // trapezoid rule is exact on a linear profile, computed].
   const double z0 = 300.0;
   TempDir dir;
   const std::string path =
@@ -241,7 +241,7 @@ bool HasNote(const DensityProfile& p, const std::string& fragment) {
 
 TEST(DensityLog, BridgesNullsScreensBadHoleFillsAboveTheTopAndSaysSo) {
   // Rows every 1 m from 100 to 110 m; NULL at 102-103, |DRHO| 0.15 g/cc at 106 (> 0.1 g/cc
-  // screen, domain brief §6 [from memory there]), trailing NULLs at 109-110.
+  // screen, common practice [from memory]), trailing NULLs at 109-110.
   LasSpec s;
   s.step = 1.0;
   s.names = {"DEPT", "RHOB", "DRHO"};
@@ -526,7 +526,7 @@ TEST(LasReader, TheGoodTemplateParses) {
 }
 
 TEST(LasReader, MalformedFilesReportFileLineAndRule) {
-  // Each rule: LAS 2.0 standard (CWLS) as summarised in the domain brief §6 "LAS 2.0".
+  // Each rule: LAS 2.0 standard (CWLS) as recalled [from memory] (docs/las.md).
   const std::vector<Malformed> cases = {
       {"missing ~V", [](auto& l) { Erase(l, 1, 1); }, 1, 0, "text before the ~V section"},
       {"~V not first", [](auto& l) { std::rotate(l.begin(), l.begin() + 3, l.begin() + 9); }, 1, 0,

@@ -1,5 +1,5 @@
 // Curves of a LAS file against table depth, and the density profile built
-// from a density curve (domain brief §6 "Vertical stress": MD -> TVD, datum,
+// from a density curve (common practice, docs/depth-method.md: MD -> TVD, datum,
 // bridged and flagged gaps, bad-hole screen, flagged fill above the log top).
 #include <algorithm>
 #include <cctype>

@@ -1,4 +1,4 @@
-// LAS 2.0 reader (CWLS LAS 2.0 standard; domain brief §6 "LAS 2.0").
+// LAS 2.0 reader (CWLS LAS 2.0 standard, as recalled [from memory]; docs/las.md).
 //
 // One pass over the lines: section lines switch state, header lines are split
 // by the first dot / first space after it / last colon rule, ~A rows are

@@ -1,7 +1,7 @@
 #pragma once
 // A reader for LAS 2.0 well-log files, written against the open standard of
 // the Canadian Well Logging Society (LAS 2.0, 1992; updated 2009 and 2014;
-// summary in the domain brief §6, "LAS 2.0"), and the density profile built
+// rules as recalled from the standard [from memory]), and the density profile built
 // from one of its curves.
 //
 // Sections: ~V (first, required: VERS 2.0 and WRAP YES/NO), ~W (required:

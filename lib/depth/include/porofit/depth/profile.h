@@ -1,6 +1,6 @@
 #pragma once
-// Density profiles against depth and their overburden integral (domain brief §6,
-// "Vertical stress"). Shared by the density-log reader (porofit/depth/las.h)
+// Density profiles against depth and their overburden integral (common
+// practice; docs/depth-method.md). Shared by the density-log reader (porofit/depth/las.h)
 // and the depth-table engine (porofit/depth/table.h).
 //
 // Depths are metres of true vertical depth (TVD) below the table's datum
