@@ -3,6 +3,7 @@
 //   porofit fit STUDY.yaml --out DIR [--overwrite] [--threads N] [--quiet]
 //   porofit check STUDY.yaml
 //   porofit models [STUDY.yaml]
+//   porofit minerals [STUDY.yaml]
 //
 // Exit status (kExitStatusHelp below, printed by --help):
 //   0  the run completed and at least one fit converged (is usable);
@@ -39,6 +40,7 @@
 #include "porofit/io/study_loader.h"
 #include "porofit/models/describe.h"
 #include "porofit/models/registry.h"
+#include "porofit/poro/minerals.h"
 #include "porofit/report/report.h"
 #include "porofit/report/stream.h"
 #include "porofit/run/progress.h"
@@ -68,6 +70,7 @@ const std::string kUsage = std::string(
     "  fit STUDY.yaml --out DIR   fit every model to every sample and write the report folder\n"
     "  check STUDY.yaml           validate a study file without fitting\n"
     "  models [STUDY.yaml]        print the model catalogue (with a study: and its user models)\n"
+    "  minerals [STUDY.yaml]      print the mineral table: moduli, sigmas, sources (with a study: and its minerals)\n"
     "\n"
     "options:\n"
     "  -h [ --help ]              show this help (or a command's: porofit fit --help)\n"
@@ -306,6 +309,37 @@ int CmdModels(const std::vector<std::string>& args) {
   return kExitOk;
 }
 
+int CmdMinerals(const std::vector<std::string>& args) {
+  po::options_description opts("porofit minerals [STUDY.yaml]");
+  std::string study_path;
+  opts.add_options()("help,h", "show this help");
+  po::options_description hidden;
+  hidden.add_options()("study", po::value<std::string>(&study_path), "study file");
+  po::options_description all;
+  all.add(opts).add(hidden);
+  po::positional_options_description pos;
+  pos.add("study", 1);
+  const po::variables_map vm = Parse(args, all, pos);
+  if (vm.count("help")) {
+    std::cout << opts << "\nPrints the built-in mineral table (K, mu, density, sigmas, source, how each was checked).\n"
+                         "With a study file, the study's 'minerals:' entries are merged in and marked.\n";
+    return kExitOk;
+  }
+  namespace poro = porofit::poro;
+  if (study_path.empty()) {
+    std::cout << poro::DescribeMineralTable(poro::MineralTable::Builtin());
+    return kExitOk;
+  }
+  poro::MineralTable table = poro::MineralTable::Builtin();
+  std::vector<std::string> ours;
+  for (const poro::Mineral& m : porofit::LoadStudy(study_path).mineral_overrides) {
+    table.Set(m);
+    ours.push_back(m.name);
+  }
+  std::cout << poro::DescribeMineralTable(table, ours);
+  return kExitOk;
+}
+
 }  // namespace
 
 int main(int argc, char** argv) {
@@ -333,13 +367,14 @@ int main(int argc, char** argv) {
     if (cmd == "fit") return CmdFit(rest, CommandLine(argc, argv));
     if (cmd == "check") return CmdCheck(rest);
     if (cmd == "models") return CmdModels(rest);
-    const std::vector<std::string> commands = {"fit", "check", "models"};
+    if (cmd == "minerals") return CmdMinerals(rest);
+    const std::vector<std::string> commands = {"fit", "check", "models", "minerals"};
     std::string hint = porofit::NearestWord(cmd, commands);
     if (cmd.rfind("-", 0) == 0) {
-      throw UsageError{"unknown option '" + cmd + "' (expected a command: fit, check or models)"};
+      throw UsageError{"unknown option '" + cmd + "' (expected a command: fit, check, models or minerals)"};
     }
     throw UsageError{"unknown command '" + cmd + "'" + (hint.empty() ? "" : " (did you mean '" + hint + "'?)") +
-                     "; commands: fit, check, models"};
+                     "; commands: fit, check, models, minerals"};
   } catch (const UsageError& e) {
     std::cerr << "porofit: error: " << e.message << "\n";
     return kExitInput;

@@ -123,7 +123,7 @@ struct ConstantCurve {
 };
 
 TEST(DeltaBands, ReproducesDomainCheckValue15) {
-  // domain brief §8 check value 15 [computed]: K 10 +- 0.5, K_s 37 +- 1 -> alpha 0.7297 +- 0.01536.
+  // Check value 15 [computed; docs/check-values.md]: K 10 +- 0.5, K_s 37 +- 1 -> alpha 0.7297 +- 0.01536.
   const ConstantCurve c(10.0, 0.5, false);
   const DeltaResult d = ComputeDeltaBands(c.Request(37.0, 1.0));
   ASSERT_TRUE(d.computed) << d.message;
@@ -466,7 +466,7 @@ TEST(PointFlags, FireAtTheGridPointsThatViolateEachBound) {
 }
 
 TEST(DerivedBands, MatchPoroFormulasAndPropagateKAndKsUncertainty) {
-  // domain brief §8 check value 4 [computed]: K 10, K_s 37, K_f 2.25, phi 0.2 ->
+  // Check value 4 [computed; docs/check-values.md]: K 10, K_s 37, K_f 2.25, phi 0.2 ->
   // M 9.6894, K_u 15.1596, B 0.46641.
   const ConstantCurve c(10.0, 0.5, false);
   BandRequest r = c.Request(37.0, 1.0);

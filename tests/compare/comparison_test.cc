@@ -262,7 +262,7 @@ TEST(CompareSample, FailedFitsAndDifferentDataAreExcludedWithTheirReason) {
 }
 
 // Leave-highest-pressure-out: a straight line through a closing-crack curve
-// over-predicts above the data (domain brief §7: tests extrapolation).
+// over-predicts above the data (common practice: a hold-out of the top pressure tests extrapolation).
 TEST(CompareSample, HighPressureHoldoutRanksTheLinearModelWorse) {
   const std::vector<double> k = ExpModulusData(21, 0.05);
   const Fitted f = FitAll({"linear", "exp-modulus"}, Pressures(), k);

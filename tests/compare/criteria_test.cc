@@ -9,7 +9,7 @@
 namespace porofit::compare {
 namespace {
 
-// Domain brief §8 check value 16 [computed]: AICc correction with N 8, k 4.
+// Check value 16 [computed; docs/check-values.md]: AICc correction with N 8, k 4.
 TEST(AiccCorrection, MatchesCheckValueSixteen) { EXPECT_NEAR(AiccCorrection(8, 4), 13.333333333, 1e-8); }
 
 // Hurvich & Tsai (1989): AICc is undefined for n <= k + 1.
@@ -19,7 +19,7 @@ TEST(AiccCorrection, IsUndefinedWithoutEnoughPoints) {
   EXPECT_NEAR(AiccCorrection(6, 4), 40.0, 1e-12);
 }
 
-// Domain brief §8 check value 16 [computed]: scores {10, 12, 16} give
+// Check value 16 [computed; docs/check-values.md]: scores {10, 12, 16} give
 // weights {0.7054, 0.2595, 0.0351}.
 TEST(AkaikeWeights, MatchCheckValueSixteen) {
   const std::vector<double> s{10, 12, 16};
@@ -48,7 +48,7 @@ TEST(AkaikeWeights, DoNotUnderflowForLargeScores) {
   EXPECT_NEAR(w[0], 1 / (1 + std::exp(-1.0)), 1e-15);
 }
 
-// Domain brief §8 check value 17 [computed; critical value from tables]:
+// Check value 17 [computed; critical value from a printed F table; docs/check-values.md]:
 // RSS 0.50 (p 3) against 0.20 (p 4), N 10 -> F 9.0 > F_0.95(1, 6) = 5.987.
 TEST(NestedFTest, MatchesCheckValueSeventeen) {
   const FTestResult r = NestedFTest(0.50, 3, 0.20, 4, 10);

@@ -6,7 +6,7 @@
 
 namespace porofit {
 
-// Domain brief §8 check value 5 [computed]: Vp 3.50, Vs 2.10 km/s, rho 2.30 g/cc
+// Check value 5 [computed; docs/check-values.md]: Vp 3.50, Vs 2.10 km/s, rho 2.30 g/cc
 // -> K 14.651 GPa, mu 10.143 GPa, nu 0.21875.
 TEST(DynamicModuli, CheckValue5) {
   const auto m = ComputeDynamicModuli({3500.0, 2100.0, 2300.0, 0, 0, 0});
@@ -24,7 +24,7 @@ TEST(DynamicModuli, CheckValue6PropagatedUncertainty) {
   EXPECT_NEAR(m.sigma_bulk / m.bulk, 0.0535, 5e-4);
 }
 
-// Vp/Vs thresholds sqrt(4/3) and sqrt(2) (domain brief §2; common practice).
+// Vp/Vs thresholds sqrt(4/3) and sqrt(2) (computed from K >= 0 and nu >= 0; common practice).
 TEST(DynamicModuli, FlagsImpossibleAndNegativePoissonRatios) {
   const auto bad = ComputeDynamicModuli({2000.0, 1800.0, 2300.0, 0, 0, 0});  // Vp/Vs 1.11
   EXPECT_TRUE(bad.negative_bulk);

@@ -4,7 +4,7 @@
 
 namespace porofit::units {
 
-// Conversion factors: domain brief §2 table and check value 7 (1 MPa = 145.0377 psi;
+// Conversion factors: check value 7 (docs/check-values.md; 1 MPa = 145.0377 psi;
 // 1 microsip <-> 6.894757 GPa) [computed]; psi = 6894.757293168 Pa by definition
 // of the international pound and inch (common practice).
 TEST(Units, PsiAndMpaAgreeWithPublishedFactor) {
@@ -27,7 +27,7 @@ TEST(Units, UnknownUnitIsRejectedAndListed) {
   EXPECT_EQ(AcceptedUnitsList(Quantity::kVelocity), "m/s, km/s, ft/s");
 }
 
-// Gradient factors: domain brief §8 check value 8 [computed] -- 1 psi/ft = 22.6206 kPa/m,
+// Gradient factors: check value 8 [computed; docs/check-values.md] -- 1 psi/ft = 22.6206 kPa/m,
 // which corresponds to 2.3067 g/cc; 1 g/cc -> 9.80665 kPa/m = 0.43353 psi/ft;
 // 0.465 psi/ft = 10.5186 kPa/m; 1 ppg = 0.051948 psi/ft.
 TEST(Units, GradientFactorsMatchCheckValue8) {

@@ -13,7 +13,7 @@ namespace {
 
 constexpr double kG = 9.80665;  // standard gravity, m/s^2
 
-// Domain brief §8 check value 20 [computed]: 1000 m of sea water (1.03 g/cc)
+// Check value 20 [computed; docs/check-values.md]: 1000 m of sea water (1.03 g/cc)
 // over 2000 m of rock at 2.30 g/cc, MSL datum, hydrostatic P_p at 1.03 g/cc.
 DepthTableSpec OffshoreColumn() {
   DepthTableSpec s;
@@ -55,7 +55,7 @@ TEST(DepthStress, OffshoreColumnMatchesCheckValue20) {
   s.stress.ratio = 0.6;
   const DepthTable t = BuildDepthTable(s);
   const DepthRow& r = RowAt(t, 3000);
-  // Domain brief §8 check value 20 [computed], to the printed digits.
+  // Check value 20 [computed; docs/check-values.md], to the printed digits.
   EXPECT_NEAR(r.vertical_stress / 1e6, 55.21, 0.005);
   EXPECT_NEAR(r.pore_pressure / 1e6, 30.30, 0.005);
   EXPECT_NEAR((r.vertical_stress - r.pore_pressure) / 1e6, 24.91, 0.005);
@@ -99,7 +99,7 @@ TEST(DepthStress, LayersThatStopAboveTheTableBaseAreAnInputError) {
 }
 
 TEST(DepthStress, OnePsiPerFootGradientGivesOnePsiPerFootOfDepth) {
-  // Domain brief §8 check value 8 [computed]: 1 psi/ft = 22.6206 kPa/m,
+  // Check value 8 [computed; docs/check-values.md]: 1 psi/ft = 22.6206 kPa/m,
   // 2.3067 g/cc; 1 psi = 6894.757 Pa (check value 7: 1 MPa = 145.0377 psi).
   DepthTableSpec s;
   s.name = "onshore";
@@ -190,7 +190,7 @@ TEST(DepthStress, UniaxialStrainMeanStressIsTheCompactionFactorTimesSigmaV) {
   const DepthTable built = BuildDepthTable(s);  // keep the rows alive
   const DepthRow& r = RowAt(built, 3000);
   const double sv_eff = r.vertical_stress - r.pore_pressure;
-  // Domain brief §8 check value 22 [computed]: (1 + nu)/(3 (1 - nu)) = 0.5556 at
+  // Check value 22 [computed; docs/check-values.md]: (1 + nu)/(3 (1 - nu)) = 0.5556 at
   // nu 0.25; under uniaxial strain sigma'_m / sigma'_v is the same factor.
   EXPECT_NEAR(r.evaluation_pressure / sv_eff, 0.5556, 5e-5);
   EXPECT_NEAR(EvaluationFactor(s.stress), 0.5556, 5e-5);
@@ -198,7 +198,7 @@ TEST(DepthStress, UniaxialStrainMeanStressIsTheCompactionFactorTimesSigmaV) {
 }
 
 TEST(DepthStress, HorizontalStressSensitivityToAlphaMatchesCheckValue21) {
-  // Domain brief §8 check value 21 [computed]: dS_h/d alpha = P_p (1 - 2 nu)/(1 - nu);
+  // Check value 21 [computed; docs/check-values.md]: dS_h/d alpha = P_p (1 - 2 nu)/(1 - nu);
   // P_p 30 MPa, nu 0.25, Delta alpha 0.1 -> Delta S_h 2.0 MPa.
   const double r = UniaxialStrainRatio(0.25);
   const double sv = 60e6, pp = 30e6;

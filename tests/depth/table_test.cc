@@ -37,7 +37,7 @@ FittedCurve CurveOf(const Sample& s, double k_s, double sigma_k_s, const std::st
 }
 
 // Invented exp-modulus sample: truth K_inf 20 GPa, K_0 8 GPa, P_close 10 MPa
-// (the shape of domain brief §8 check value 12), 15 points at 5, 10, ..., 75 MPa,
+// (the shape of check value 12, docs/check-values.md), 15 points at 5, 10, ..., 75 MPa,
 // 1 % noise, seeded.
 const Sample& ExpSample() {
   static const Sample s = [] {

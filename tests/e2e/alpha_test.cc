@@ -198,7 +198,7 @@ TEST(AlphaOutputs, ResultsJsonCarriesTheSchemaVersionAndTheCorrelationCaveat) {
 }
 
 TEST(AlphaOutputs, VtiStiffnessesGiveTheCheckValues) {
-  // Domain brief §8 check value 14 [computed]: C11 30, C12 10, C13 8, C33 20,
+  // Check value 14 [computed; docs/check-values.md]: C11 30, C12 10, C13 8, C33 20,
   // K_s 40 GPa -> alpha_h 0.600, alpha_v 0.700.
   const std::string text =
       "name: vti check\nsamples:\n  - id: S1\n    lithology: shale\n    porosity: 0.1\n    bulk_density: 2.5 g/cc\n"
@@ -214,7 +214,7 @@ TEST(AlphaOutputs, VtiStiffnessesGiveTheCheckValues) {
   ASSERT_EQ(run.samples[0].vti.size(), 2u);
   EXPECT_NEAR(run.samples[0].vti[0].alpha_h, 0.600, 1e-12);
   EXPECT_NEAR(run.samples[0].vti[0].alpha_v, 0.700, 1e-12);
-  // d alpha = (1 - alpha) dK_s/K_s (domain brief §5): 0.4 * 2/40 = 0.02.
+  // d alpha = (1 - alpha) dK_s/K_s [computed from alpha = 1 - K/K_s]: 0.4 * 2/40 = 0.02.
   EXPECT_NEAR(run.samples[0].vti[0].sigma_h, 0.02, 1e-12);
   EXPECT_FALSE(run.samples[0].vti[0].extrapolated);
   EXPECT_TRUE(run.samples[0].vti[1].extrapolated);

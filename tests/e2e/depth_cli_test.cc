@@ -119,7 +119,7 @@ TEST_F(DepthCli, ResultsJsonAndSummaryCarryTheTable) {
 
 
 // Study keys -> loader -> run -> engine on the offshore column of the domain
-// brief §8 check value 20 [computed]: 1000 m of sea water (1.03 g/cc) over
+// check value 20 [computed; docs/check-values.md]: 1000 m of sea water (1.03 g/cc) over
 // 2000 m of rock at 2.30 g/cc: S_v 55.21 MPa at 3000 m TVDSS, hydrostatic P_p
 // (1.03 g/cc) 30.30 MPa, sigma'_v 24.91 MPa; with k = 0.6, sigma'_m 18.27 MPa.
 TEST(DepthStudy, OffshoreColumnThroughTheStudyKeysMatchesCheckValue20) {

@@ -50,7 +50,7 @@ TEST(StrainCli, FitsAStrainStudyAndWritesTangentSecantAndChordModuli) {
     }
   }
   // S1-eps was generated from exp-modulus K_inf 20, K_0 8 GPa, P_close 10 MPa
-  // (domain brief §8 check value 12 parameters [computed]) with 2 microstrain noise.
+  // (check value 12 parameters, docs/check-values.md) with 2 microstrain noise.
   const auto& fit = j["samples"][0]["fits"][0];
   ASSERT_EQ(fit["model"], "exp-modulus");
   for (const auto& p : fit["parameters"]) {

@@ -99,7 +99,7 @@ TEST(VtiFit, FittedStiffnessesReproduceTheGivenTableAlphaWhenTheLawIsExact) {
 
 TEST(VtiFit, IsotropicStiffnessesGiveEqualAlphaOnTheFittedPath) {
   // Isotropic stiffness as VTI: C11 = C33 = K + 4mu/3, C12 = C13 = K - 2mu/3,
-  // so alpha_h = alpha_v = 1 - K/K_s (domain brief §4 (VTI Biot tensor),
+  // so alpha_h = alpha_v = 1 - K/K_s (VTI Biot tensor, docs/poroelastic-relations.md;
   // common practice). K(P), mu(P) invented exp-modulus laws with one P_close,
   // so every stiffness follows the same law.
   std::vector<std::vector<double>> rows;

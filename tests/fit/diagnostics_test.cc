@@ -18,7 +18,7 @@ Eigen::VectorXd Vec(std::initializer_list<double> v) {
 }
 
 TEST(DurbinWatson, AlternatingResidualsGiveThree) {
-  // Domain brief §8 check value 19 [computed]: residuals (1, -1, 1, -1) give d = 3.0.
+  // Check value 19 [computed; docs/check-values.md]: residuals (1, -1, 1, -1) give d = 3.0.
   EXPECT_DOUBLE_EQ(DurbinWatson(Vec({1, -1, 1, -1})), 3.0);
 }
 

@@ -53,7 +53,7 @@ struct Truth {
   double noise;               // working units of y
 };
 
-// Invented, typical dry-sandstone-like values (domain brief §3 ranges, from memory there).
+// Invented, typical dry-sandstone-like values (typical laboratory ranges, from memory).
 std::vector<Truth> Truths() {
   return {
       {"linear", {8.0, 0.15}, 0.2},
@@ -199,7 +199,7 @@ TEST(Fit, RobustLossDownWeightsOneGrossOutlier) {
 // residual. The check against the clean-data fit is the behaviour asked of
 // Huber's M-estimator covariance (FitResult::variance_factor); the "naive"
 // form s^2 (J^T W J)^-1 with s^2 = SSR/(n-p) is rebuilt here by hand from the
-// analytic exp-modulus Jacobian (domain brief §3, M1) and must be inflated.
+// analytic exp-modulus Jacobian [computed] and must be inflated.
 TEST(Fit, RobustStandardErrorsStayNearTheCleanFitDespiteAGrossOutlier) {
   const ModelSpec& m = Model("exp-modulus");
   constexpr int kSeeds = 20, kOut = 6;

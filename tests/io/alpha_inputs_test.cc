@@ -53,7 +53,7 @@ TEST(AlphaInputs, MeasuredGrainModulusKeepsValueSigmaAndSource) {
   const GrainModulusChoice& g = s.samples[0].grain;
   ASSERT_TRUE(g.given);
   EXPECT_EQ(g.value.method, poro::GrainModulusMethod::kMeasured);
-  // 1 psi = 6.894757 kPa (domain brief §2, 7 digits: tolerance 0.001 Pa/psi)
+  // 1 psi = 6.894757 kPa (check value 7, docs/check-values.md; 7 digits: tolerance 0.001 Pa/psi)
   EXPECT_NEAR(g.value.k_s, 5366e3 * 6894.757, 5366e3 * 1e-3);
   EXPECT_NEAR(g.value.sigma_k_s, 0.02 * g.value.k_s, 1e-3);
   EXPECT_NEAR(g.value.mu_s, 44e9, 1e-3);
@@ -62,7 +62,7 @@ TEST(AlphaInputs, MeasuredGrainModulusKeepsValueSigmaAndSource) {
 }
 
 TEST(AlphaInputs, MineralogyInVolumeFractionsGivesTheHillAverage) {
-  // Domain brief §8 check value 9 [computed]: quartz-calcite 80/20 by volume,
+  // Check value 9 [computed; docs/check-values.md]: quartz-calcite 80/20 by volume,
   // K_V 44.96, K_R 41.278, Hill 43.119 GPa. The study overrides the built-in
   // moduli with the check's inputs (K 37 / 76.8, mu 44 / 32 GPa).
   const std::string minerals =

@@ -120,7 +120,7 @@ TEST(DepthTablesSection, ReadsEveryKeyInSi) {
   EXPECT_DOUBLE_EQ(t.spec.datum.water_density, 1030);
   EXPECT_DOUBLE_EQ(t.spec.top, 1100);
   EXPECT_DOUBLE_EQ(t.spec.step, 50);
-  // 1 psi/ft = 22.6206 kPa/m (domain brief §8 check value 8 [computed]).
+  // 1 psi/ft = 22.6206 kPa/m (check value 8 [computed; docs/check-values.md]).
   EXPECT_NEAR(t.spec.overburden.gradient, 22620.6, 0.05);
   EXPECT_DOUBLE_EQ(t.spec.pore_pressure.gradient, 10100);
   EXPECT_DOUBLE_EQ(t.spec.pore_pressure.zero_depth, 0);  // the sea surface of an MSL datum

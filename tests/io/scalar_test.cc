@@ -36,7 +36,7 @@ TEST(UnitExpression, ComposesPressureUnitsWithPowers) {
   EXPECT_NEAR(c->pressure_exponent, 2.0 / 3.0, 1e-12);
   auto d = ParseUnitExpression("1/psi");
   ASSERT_TRUE(d);
-  EXPECT_NEAR(d->si_factor, 1 / 6894.757, 1e-9);  // domain brief §2: 1 psi = 6.894757 kPa
+  EXPECT_NEAR(d->si_factor, 1 / 6894.757, 1e-9);  // check value 7 (docs/check-values.md): 1 psi = 6.894757 kPa
 }
 
 TEST(UnitExpression, RejectsUnknownNamesAndDanglingOperators) {

@@ -11,7 +11,7 @@ namespace porofit {
 namespace {
 
 // Conversion constants written out independently of porofit::units
-// (domain brief §2: 1 psi = 6.894757 kPa, 1 bar = 0.1 MPa; 1 ft = 0.3048 m by definition).
+// (check value 7, docs/check-values.md: 1 psi = 6.894757 kPa; 1 bar = 0.1 MPa; 1 ft = 0.3048 m by definition).
 constexpr double kPsiPa = 6894.757;
 constexpr double kFt = 0.3048;
 
@@ -121,9 +121,9 @@ TEST(StudyLoader, DynamicModulusAndPropagatedSigmaMatchDomainCheckValues) {
   EXPECT_EQ(s.kind, MeasurementKind::kDynamic);
   ASSERT_EQ(s.points.size(), 2u);
   const DataPoint& p = s.points[0];
-  // domain brief §8 check value 5 [computed]: Vp 3.50, Vs 2.10 km/s, rho 2.30 g/cc -> K 14.651 GPa.
+  // Check value 5 [computed; docs/check-values.md]: Vp 3.50, Vs 2.10 km/s, rho 2.30 g/cc -> K 14.651 GPa.
   EXPECT_NEAR(p.modulus / 1e9, 14.651, 0.0005);
-  // domain brief §8 check value 6 [computed]: sigma_rho 0.01 g/cc, 1 % Vp, 2 % Vs -> sigma_K 0.784 GPa.
+  // Check value 6 [computed; docs/check-values.md]: sigma_rho 0.01 g/cc, 1 % Vp, 2 % Vs -> sigma_K 0.784 GPa.
   EXPECT_NEAR(p.sigma / 1e9, 0.784, 0.0005);
   ASSERT_TRUE(p.waves.has_value());
   EXPECT_DOUBLE_EQ(p.waves->vp, 3500);
@@ -143,7 +143,7 @@ TEST(StudyLoader, ConvertsFeetPerSecondAndPerPointVelocitySigmas) {
   EXPECT_NEAR(p.waves->vs, 6889.76 * kFt, 1e-9);
   EXPECT_DOUBLE_EQ(p.waves->rho, 2300);  // rho column in g/cc
   EXPECT_NEAR(p.pressure, 10e6, 1e-6);   // P_c 15 - P_p 5, n = 1
-  // sigma_Vp 35 m/s absolute, sigma_Vs 2 % of Vs, no density error: by the formula of domain brief §2.
+  // sigma_Vp 35 m/s absolute, sigma_Vs 2 % of Vs, no density error: by the formula in porofit/core/dynamic.h [computed].
   const double vp = p.waves->vp, vs = p.waves->vs, rho = 2300;
   const double expect = std::hypot(2 * rho * vp * 35.0, (8.0 / 3.0) * rho * vs * 0.02 * vs);
   EXPECT_NEAR(p.sigma, expect, 1e-6 * expect);
@@ -225,6 +225,19 @@ TEST(StudyLoader, DifferentialPressureColumnIsUsedDirectlyAndRowsKeepFileOrder) 
   EXPECT_DOUBLE_EQ(a.points[1].pressure, 5e6);
   EXPECT_DOUBLE_EQ(a.points[0].pore, 0);
   EXPECT_EQ(a.points[1].where.ToString(), "mem/small.yaml:10:25");
+}
+
+// Regression: a real study whose description says "nothing here is invented"
+// was taken as invented. Only the top-level key `invented` declares it (a
+// non-boolean value is a located error: tests/data/bad/invented-not-boolean.yaml).
+TEST(StudyLoader, InventedIsDeclaredByTheKeyNotByWords) {
+  const std::string words = std::string("description: measured plugs; nothing here is invented\n") + kSmall;
+  EXPECT_FALSE(ParseStudy(words, "small.yaml", ModelRegistry::Builtin()).invented);
+  EXPECT_FALSE(ParseStudy(kSmall, "small.yaml", ModelRegistry::Builtin()).invented);
+  const std::string declared = std::string("invented: true\n") + kSmall;
+  EXPECT_TRUE(ParseStudy(declared, "small.yaml", ModelRegistry::Builtin()).invented);
+  const std::string no = std::string("invented: false\nname: invented data\n") + (kSmall + 12);
+  EXPECT_FALSE(ParseStudy(no, "small.yaml", ModelRegistry::Builtin()).invented);
 }
 
 TEST(StudyLoader, UnweightedSampleHasNoSigmasAndScalesCovariance) {
@@ -342,6 +355,7 @@ TEST(StudyLoader, InventedSampleStudyLoadsWithoutWarnings) {
   const Study s = LoadStudy(std::string(POROFIT_SOURCE_DIR) + "/samples/invented-field-study.yaml");
   EXPECT_GE(s.samples.size(), 6u);
   EXPECT_TRUE(s.warnings.empty());
+  EXPECT_TRUE(s.invented);  // declared with `invented: true`
   bool has_static = false, has_dynamic = false, has_unloading = false;
   for (const auto& ss : s.samples) {
     has_static |= ss.sample.kind == MeasurementKind::kStatic;

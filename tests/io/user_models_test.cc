@@ -91,7 +91,7 @@ TEST(UserModels, AreDeclaredWithUnitsBoundsStartAndTransformAndNamedLikeBuiltins
   ASSERT_EQ(c.settings.count("K_0"), 1u);
   EXPECT_DOUBLE_EQ(*c.settings.at("K_0").start, 7e9);
   EXPECT_DOUBLE_EQ(*c.settings.at("K_0").upper, 9e9);
-  // domain brief §2: 1 psi = 6.894757 kPa (to the 7 digits given there)
+  // check value 7 (docs/check-values.md): 1 psi = 6.894757 kPa (7 digits)
   EXPECT_NEAR(*c.settings.at("P_close").lower, 1450 * 6894.757, 1e-7 * 1450 * 6894.757);
 }
 

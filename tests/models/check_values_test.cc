@@ -6,9 +6,9 @@
 namespace porofit {
 namespace {
 
-// Domain brief §8 check value 12 [computed]: M1 with K_inf 20, K_0 8 GPa,
+// Check value 12 [computed; docs/check-values.md]: M1 with K_inf 20, K_0 8 GPa,
 // P* 10 MPa. Tolerances are half a unit in the last quoted digit.
-TEST(ExpModulus, ReproducesDomainBriefCheckValue12) {
+TEST(ExpModulus, ReproducesCheckValue12) {
   const ModelSpec& m1 = *ModelRegistry::Builtin().Find("exp-modulus");
   const double th[] = {20, 8, 10};
   EXPECT_NEAR(m1.value(th, 10), 15.5854, 5e-5);  // GPa
@@ -29,9 +29,9 @@ TEST(ExpModulus, ReproducesDomainBriefCheckValue12) {
   EXPECT_NEAR(1 - m1.value(th, 30) / k_s, 0.4756, 5e-5);
 }
 
-// Domain brief §8 check value 13 [computed]: M2 with C_inf 0.05, C_0 0.2 /GPa,
+// Check value 13 [computed; docs/check-values.md]: M2 with C_inf 0.05, C_0 0.2 /GPa,
 // P* 10 MPa.
-TEST(ExpCompliance, ReproducesDomainBriefCheckValue13) {
+TEST(ExpCompliance, ReproducesCheckValue13) {
   const ModelSpec& m2 = *ModelRegistry::Builtin().Find("exp-compliance");
   const double th[] = {0.05, 0.2, 10};
   EXPECT_NEAR(m2.value(th, 10), 9.507, 5e-4);              // GPa

@@ -1,4 +1,4 @@
-// Limiting cases and nestings of the catalogue (domain brief §3, "Nesting").
+// Limiting cases and nestings of the catalogue (computed from the model formulas).
 #include <gtest/gtest.h>
 
 #include <cmath>
@@ -27,7 +27,7 @@ TEST(ExpModulus, EqualsK0AtZeroPressureAndApproachesKInfAtHighPressure) {
 }
 
 TEST(LinearExp, WithZeroSlopeEqualsExpModulus) {
-  // B = 0: A = K_inf, C = K_inf - K_0, D = 1/P_close (domain brief §3, M3).
+  // B = 0: A = K_inf, C = K_inf - K_0, D = 1/P_close [computed].
   const ModelSpec& m1 = Model("exp-modulus");
   const ModelSpec& m3 = Model("linear-exp");
   for (const std::vector<double>& t1 : {std::vector<double>{20, 8, 10}, {30, 10, 3}, {12, 6, 40}}) {
@@ -41,7 +41,7 @@ TEST(LinearExp, WithZeroSlopeEqualsExpModulus) {
 }
 
 TEST(PowerOffset, TendsToPowerRefAsOffsetPressureVanishes) {
-  // Hold K_0 P_r^(-n) = K_ref P_ref^(-n) while P_r -> 0 (domain brief §3, M6).
+  // Hold K_0 P_r^(-n) = K_ref P_ref^(-n) while P_r -> 0 [computed].
   const ModelSpec& m5 = Model("power-ref");
   const ModelSpec& m6 = Model("power-offset");
   const double t5[] = {12, 0.2, 20};
@@ -71,7 +71,7 @@ TEST(PowerRef, WithExponentOneThirdAndUnitReferenceEqualsGrainContact) {
 }
 
 TEST(GrainContact, DoublingPressureMultipliesModulusByCubeRootOfTwo) {
-  // Domain brief §8 check value 11 [computed]: factor 1.2599.
+  // Check value 11 [computed; docs/check-values.md]: factor 1.2599.
   const ModelSpec& m7 = Model("grain-contact");
   const double t7[] = {1.616 / std::cbrt(10.0)};
   for (double p : {0.5, 10.0, 40.0}) {
@@ -108,7 +108,7 @@ TEST(Linear, StrainTendsToPOverK0AsSlopeVanishes) {
 }
 
 TEST(Linear, IsTheLongClosureLimitOfExpModulus) {
-  // Boundary nesting M0 in M1 (domain brief §3): P_close -> inf with
+  // Boundary nesting M0 in M1 [computed]: P_close -> inf with
   // (K_inf - K_0)/P_close = b fixed.
   const ModelSpec& m0 = Model("linear");
   const ModelSpec& m1 = Model("exp-modulus");

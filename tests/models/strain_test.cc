@@ -1,5 +1,5 @@
 // Strain forms: exact strain derivatives, the quadrature rule, the strain-form
-// fit model and the domain brief's strain check values.
+// fit model and the strain check values of docs/check-values.md.
 #include <gtest/gtest.h>
 
 #include <cmath>
@@ -140,9 +140,9 @@ TEST(GaussLegendreStrain, IsUndefinedWhereTheModulusIsNotPositive) {
   EXPECT_EQ(GaussLegendreStrain<double>([](double) { return 1.0; }, 0.0), 0.0);
 }
 
-// Domain brief §8 check value 12 [computed]: M1 with K_inf 20, K_0 8 GPa,
+// Check value 12 [computed; docs/check-values.md]: M1 with K_inf 20, K_0 8 GPa,
 // P* 10 MPa, through the strain-form model (millistrain).
-TEST(StrainForm, ExpModulusReproducesDomainBriefCheckValue12) {
+TEST(StrainForm, ExpModulusReproducesCheckValue12) {
   const ModelSpec& m1 = *ModelRegistry::Builtin().Find("exp-modulus");
   const ModelSpec s = StrainForm(m1);
   const double th[] = {20, 8, 10};
@@ -155,8 +155,8 @@ TEST(StrainForm, ExpModulusReproducesDomainBriefCheckValue12) {
   for (double p : {1.0, 5.0, 10.0, 30.0, 60.0}) EXPECT_LT(p / s.value(th, p), m1.value(th, p)) << p;
 }
 
-// Domain brief §8 check value 13 [computed]: M2 with C_inf 0.05, C_0 0.2 /GPa, P* 10 MPa.
-TEST(StrainForm, ExpComplianceReproducesDomainBriefCheckValue13) {
+// Check value 13 [computed; docs/check-values.md]: M2 with C_inf 0.05, C_0 0.2 /GPa, P* 10 MPa.
+TEST(StrainForm, ExpComplianceReproducesCheckValue13) {
   const ModelSpec s = StrainForm(*ModelRegistry::Builtin().Find("exp-compliance"));
   const double th[] = {0.05, 0.2, 10};
   EXPECT_NEAR(s.value(th, 10) * s.y_si_factor, 1.4482e-3, 5e-8);
@@ -164,7 +164,7 @@ TEST(StrainForm, ExpComplianceReproducesDomainBriefCheckValue13) {
   EXPECT_NEAR(1.0 / s.slope(th, 10), 9.507, 5e-4);
 }
 
-// linear-exp with B = 0 is exp-modulus (domain brief §3, nesting), so its
+// linear-exp with B = 0 is exp-modulus [computed], so its
 // quadrature strain must match the closed form of exp-modulus.
 TEST(StrainForm, LinearExpQuadratureMatchesExpModulusAtBZero) {
   const ModelSpec& m1 = *ModelRegistry::Builtin().Find("exp-modulus");

@@ -2,6 +2,8 @@
 
 #include <gtest/gtest.h>
 
+#include <algorithm>
+#include <cctype>
 #include <fstream>
 #include <sstream>
 
@@ -120,7 +122,7 @@ TEST(MineralTable, EmptySourceIsRejected) {
   auto lines = GoodLines();
   lines[10] = "    source: \"  \"";
   const InputError e = ParseError(lines);
-  EXPECT_EQ(e.message(), "quartz.source is empty; give the reference and its reliability tag");
+  EXPECT_EQ(e.message(), "quartz.source is empty; give the published source (author, year, title, table)");
   EXPECT_EQ(e.location().line, 11);
 }
 
@@ -193,7 +195,7 @@ TEST(MineralTable, UnknownMineralSuggestsTheNearestName) {
 TEST(MineralTable, MergeOverridesWholeEntriesAndAddsNewOnes) {
   auto lines = GoodLines();
   lines[5] = "    bulk: 36.6";
-  lines.insert(lines.end(), {"  chlorite:", "    bulk: 95", "    shear: 11", "    density: 2.8",
+  lines.insert(lines.end(), {"  chamosite:", "    bulk: 95", "    shear: 11", "    density: 2.8",
                              "    sigma_bulk: 30", "    sigma_shear: 4", "    clay: true",
                              "    source: \"invented study value\""});
   const MineralTable overrides = ParseMineralTable(Join(lines), "study-minerals.yaml");
@@ -203,7 +205,7 @@ TEST(MineralTable, MergeOverridesWholeEntriesAndAddsNewOnes) {
   EXPECT_DOUBLE_EQ(merged.Get("quartz").bulk, 36.6 * GPa);
   EXPECT_EQ(merged.Get("quartz").source, "test entry [invented]");
   EXPECT_EQ(merged.Get("quartz").where.file, "study-minerals.yaml");
-  EXPECT_TRUE(merged.Get("chlorite").clay);
+  EXPECT_TRUE(merged.Get("chamosite").clay);
   EXPECT_TRUE(merged.Get("calcite").SameValues(base.Get("calcite")));
   // The base table is unchanged.
   EXPECT_DOUBLE_EQ(base.Get("quartz").bulk, 37 * GPa);
@@ -224,25 +226,138 @@ TEST(BuiltinMineralTable, EqualsTheConfigFile) {
   EXPECT_EQ(BuiltinMineralTableText(), text.str());
 }
 
-TEST(BuiltinMineralTable, HoldsTheBriefsMineralsWithTaggedSources) {
+TEST(BuiltinMineralTable, EveryEntryNamesAPublishedSourceAndHowItWasChecked) {
   const MineralTable& t = MineralTable::Builtin();
-  const std::vector<std::string> expected = {"albite",     "anhydrite", "calcite", "dolomite",
-                                             "feldspar",   "gulf_clay", "halite",  "mixed_clay",
-                                             "orthoclase", "pyrite",    "quartz"};
+  const std::vector<std::string> expected = {
+      "albite",     "anhydrite", "calcite",   "chlorite",        "dolomite", "feldspar", "gulf_clay",
+      "gypsum",     "halite",    "illite",    "kaolinite",       "mixed_clay", "montmorillonite", "muscovite",
+      "orthoclase", "pyrite",    "quartz",    "siderite",        "smectite"};
   EXPECT_EQ(t.Names(), expected);
+  const auto& allowed = MineralCheckValues();
   for (const auto& [name, m] : t.minerals()) {
-    const bool tagged = m.source.find("[checked") != std::string::npos ||
-                        m.source.find("[from memory") != std::string::npos;
-    EXPECT_TRUE(tagged) << name << ": " << m.source;
+    // A citation, not a tag: an author and a four-digit year, and no bracket tags.
+    bool has_year = false;
+    for (size_t i = 0; i + 4 <= m.source.size(); ++i)
+      has_year = has_year || (std::isdigit(static_cast<unsigned char>(m.source[i])) &&
+                              std::isdigit(static_cast<unsigned char>(m.source[i + 3])) &&
+                              (m.source.compare(i, 2, "19") == 0 || m.source.compare(i, 2, "20") == 0));
+    EXPECT_TRUE(has_year) << name << ": " << m.source;
+    EXPECT_GT(m.source.size(), 40u) << name << ": a title belongs in the source: " << m.source;
+    EXPECT_EQ(m.source.find('['), std::string::npos) << name << ": " << m.source;
+    EXPECT_EQ(m.source.find("memory"), std::string::npos) << name << ": provenance belongs in 'checked'";
+    EXPECT_NE(std::find(allowed.begin(), allowed.end(), m.checked), allowed.end()) << name << ": " << m.checked;
     EXPECT_GT(m.sigma_bulk, 0) << name;
     EXPECT_GT(m.sigma_shear, 0) << name;
   }
-  // Domain brief §4 table values [checked, secondary] / [checked].
+  // Table values as config/minerals.yaml records them, with their sources there.
   EXPECT_DOUBLE_EQ(t.Get("quartz").bulk, 37 * GPa);
   EXPECT_DOUBLE_EQ(t.Get("quartz").shear, 44 * GPa);
   EXPECT_DOUBLE_EQ(t.Get("calcite").bulk, 76.8 * GPa);
   EXPECT_DOUBLE_EQ(t.Get("pyrite").density, 4930);
   EXPECT_DOUBLE_EQ(t.Get("gulf_clay").bulk, 25 * GPa);
+  EXPECT_EQ(t.Get("calcite").checked, "against source excerpt");
+  EXPECT_EQ(t.Get("illite").checked, "from memory");
+}
+
+// The species of an XRD report and the common accessories, with physically
+// sane values: K, mu > 0, Poisson ratio in (-1, 0.5), density of a mineral
+// (2-5.5 g/cc), the clay flag on the clays only, and clays at 40 % sigma.
+TEST(BuiltinMineralTable, HoldsTheXrdClaysAndAccessoriesWithSaneValues) {
+  const MineralTable& t = MineralTable::Builtin();
+  const std::vector<std::string> clays = {"illite", "kaolinite", "chlorite", "smectite", "montmorillonite"};
+  const std::vector<std::string> others = {"muscovite", "anhydrite", "gypsum", "siderite", "pyrite", "halite"};
+  for (const std::string& name : clays) {
+    const Mineral* m = t.Find(name);
+    ASSERT_NE(m, nullptr) << name;
+    EXPECT_TRUE(m->clay) << name;
+    EXPECT_NEAR(m->sigma_bulk / m->bulk, 0.4, 1e-12) << name;
+    EXPECT_NEAR(m->sigma_shear / m->shear, 0.4, 1e-12) << name;
+  }
+  for (const std::string& name : others) {
+    const Mineral* m = t.Find(name);
+    ASSERT_NE(m, nullptr) << name;
+    EXPECT_FALSE(m->clay) << name;
+  }
+  for (const auto& [name, m] : t.minerals()) {
+    const double nu = (3 * m.bulk - 2 * m.shear) / (2 * (3 * m.bulk + m.shear));
+    EXPECT_GT(nu, -1) << name;
+    EXPECT_LT(nu, 0.5) << name;
+    EXPECT_GE(m.density, 2000) << name;
+    EXPECT_LE(m.density, 5500) << name;
+    EXPECT_LE(m.bulk, 200 * GPa) << name;
+  }
+  EXPECT_GT(t.Get("pyrite").density, t.Get("siderite").density);
+  EXPECT_GT(t.Get("siderite").density, t.Get("quartz").density);
+}
+
+TEST(MineralTable, CheckedMustBeOneOfTheAcceptedValues) {
+  auto lines = GoodLines();
+  lines.push_back("    checked: from memory");
+  EXPECT_EQ(ParseMineralTable(Join(lines), "minerals.yaml").Get("quartz").checked, "from memory");
+  lines.back() = "    checked: yes";
+  const InputError e = ParseError(lines);
+  EXPECT_STREQ(e.what(),
+               "minerals.yaml:12:14: error: quartz.checked = 'yes' is not one of 'against source excerpt', "
+               "'against secondary citation', 'from memory'");
+  // Absent: not stated.
+  EXPECT_EQ(ParseMineralTable(Join(GoodLines()), "minerals.yaml").Get("quartz").checked, "");
+}
+
+TEST(MineralTable, CloseMatchesByPrefixSubstringAndEditDistance) {
+  const MineralTable& t = MineralTable::Builtin();
+  EXPECT_EQ(t.CloseMatches("illit"), std::vector<std::string>{"illite"});
+  EXPECT_EQ(t.CloseMatches("mont"), std::vector<std::string>{"montmorillonite"});
+  EXPECT_EQ(t.CloseMatches("kaolin"), std::vector<std::string>{"kaolinite"});
+  EXPECT_EQ(t.CloseMatches("feldspars"), std::vector<std::string>{"feldspar"});
+  EXPECT_EQ(t.CloseMatches("Quartz"), std::vector<std::string>{"quartz"});
+  EXPECT_EQ(t.CloseMatches("clorite"), std::vector<std::string>{"chlorite"});
+  const std::vector<std::string> clays = {"chlorite",   "gulf_clay",       "illite",  "kaolinite",
+                                          "mixed_clay", "montmorillonite", "smectite"};
+  EXPECT_EQ(t.CloseMatches("clay"), clays);
+  EXPECT_EQ(t.CloseMatches("clays"), clays);
+  EXPECT_TRUE(t.CloseMatches("zircon").empty());
+  EXPECT_EQ(t.CloseMatches("clay", 2).size(), 2u);
+}
+
+TEST(MineralTable, UnknownMineralListsTheCloseMatches) {
+  const MineralTable& t = MineralTable::Builtin();
+  // Regression: 'illite' used to suggest 'albite' (no clay species in the table).
+  EXPECT_EQ(UnknownMineralMessage(t, "illit"), "unknown mineral 'illit' (did you mean 'illite'?)");
+  EXPECT_EQ(UnknownMineralMessage(t, "clay"),
+            "unknown mineral 'clay' (the clay minerals are 'chlorite', 'gulf_clay', 'illite', 'kaolinite', "
+            "'mixed_clay', 'montmorillonite' and 'smectite')");
+  EXPECT_EQ(UnknownMineralMessage(t, "zircon"), "unknown mineral 'zircon'");
+  MineralTable small;
+  for (const char* n : {"calcite", "calcite_hmc"}) {
+    Mineral m = t.Get("calcite");
+    m.name = n;
+    small.Set(m);
+  }
+  EXPECT_EQ(UnknownMineralMessage(small, "calc"), "unknown mineral 'calc' (did you mean one of 'calcite', 'calcite_hmc'?)");
+  try {
+    t.Get("illit", {"study.yaml", 4, 9});
+    ADD_FAILURE() << "expected InputError";
+  } catch (const InputError& e) {
+    EXPECT_STREQ(e.what(), "study.yaml:4:9: error: unknown mineral 'illit' (did you mean 'illite'?)");
+  }
+}
+
+TEST(MineralTable, DescriptionShowsSourceAndCheckedOnTheirOwnLines) {
+  const std::string d = DescribeMineralTable(MineralTable::Builtin(), {"quartz"});
+  EXPECT_NE(d.find("decision support only"), std::string::npos);
+  EXPECT_NE(d.find("\nquartz [from the study file]\n  K 37 +- 0.74 GPa, mu 44 +- 0.88 GPa, rho 2.65 g/cc\n"
+                   "  source:  Carmichael 1989, Practical Handbook"),
+            std::string::npos)
+      << d;
+  EXPECT_NE(d.find("\nillite (clay)\n"), std::string::npos);
+  EXPECT_NE(d.find("  checked: from memory\n"), std::string::npos);
+  EXPECT_NE(d.find("  checked: against source excerpt\n"), std::string::npos);
+  EXPECT_EQ(d.find("[from memory"), std::string::npos);
+  size_t blocks = 0;
+  for (size_t at = d.find("\n  source:  "); at != std::string::npos; at = d.find("\n  source:  ", at + 1)) ++blocks;
+  EXPECT_EQ(blocks, MineralTable::Builtin().size());
+  MineralTable plain = ParseMineralTable(Join(GoodLines()), "minerals.yaml");
+  EXPECT_NE(DescribeMineralTable(plain).find("  checked: not stated\n"), std::string::npos);
 }
 
 TEST(BuiltinMineralTable, ClaysCarryTheWidestRelativeUncertainty) {

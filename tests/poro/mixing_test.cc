@@ -2,6 +2,7 @@
 
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <cmath>
 #include <random>
 
@@ -17,7 +18,7 @@ Eigen::VectorXd Vec(std::initializer_list<double> v) {
   return x;
 }
 
-// Domain brief §8 check value 9 [computed]: quartz-calcite 80/20 by volume,
+// Check value 9 [computed; docs/check-values.md]: quartz-calcite 80/20 by volume,
 // K 37/76.8, mu 44/32 GPa.
 TEST(MixingLaws, QuartzCalciteReproducesCheckValues) {
   const Eigen::VectorXd f = Vec({0.8, 0.2}), k = Vec({37, 76.8}), mu = Vec({44, 32});
@@ -34,7 +35,7 @@ TEST(MixingLaws, QuartzCalciteReproducesCheckValues) {
   EXPECT_NEAR(mb.upper, 41.315, 5e-4);
 }
 
-// Domain brief §8 check value 10 [computed]: quartz-clay 70/30, K 37/21 GPa.
+// Check value 10 [computed; docs/check-values.md]: quartz-clay 70/30, K 37/21 GPa.
 TEST(MixingLaws, QuartzClayReproducesCheckValues) {
   const Eigen::VectorXd f = Vec({0.7, 0.3}), k = Vec({37, 21});
   EXPECT_NEAR(VoigtAverage(f, k), 32.20, 5e-3);
@@ -59,7 +60,8 @@ TEST(MixingLaws, MineralWithZeroFractionDoesNotLoosenTheBounds) {
   EXPECT_DOUBLE_EQ(HashinShtrikmanShear(f3, k3, mu3).lower, HashinShtrikmanShear(f2, k2, mu2).lower);
 }
 
-// Invariant (domain brief §4): R <= HS- <= HS+ <= V, for K and mu, on random mixes.
+// Invariant (Mavko, Mukerji & Dvorkin 2009, The Rock Physics Handbook, 2nd ed.
+// [from memory]): R <= HS- <= HS+ <= V, for K and mu, on random mixes.
 TEST(MixingLaws, BoundsAreOrderedOnRandomMixes) {
   std::mt19937_64 rng(20240611);
   std::uniform_real_distribution<double> mod(2.0, 150.0), frac(0.0, 1.0);
@@ -82,6 +84,41 @@ TEST(MixingLaws, BoundsAreOrderedOnRandomMixes) {
     EXPECT_LE(ReussAverage(f, mu), mb.lower + tol) << "trial " << trial;
     EXPECT_LE(mb.lower, mb.upper + tol) << "trial " << trial;
     EXPECT_LE(mb.upper, VoigtAverage(f, mu) + tol) << "trial " << trial;
+  }
+}
+
+// The same invariant through the built-in table, on random XRD-like weight
+// mixes of its minerals (clay species and accessories included), and every
+// mix gets a positive sigma.
+TEST(GrainModulusFromMineralogy, BoundsAreOrderedOnRandomMixesOfTheBuiltinTable) {
+  const MineralTable& t = MineralTable::Builtin();
+  const std::vector<std::string> names = t.Names();
+  std::mt19937_64 rng(20261201);
+  std::uniform_real_distribution<double> frac(0.0, 1.0);
+  std::uniform_int_distribution<int> count(1, 6);
+  std::uniform_int_distribution<size_t> pick(0, names.size() - 1);
+  for (int trial = 0; trial < 500; ++trial) {
+    std::vector<std::string> chosen;
+    const int n = count(rng);
+    while (static_cast<int>(chosen.size()) < n) {
+      const std::string& name = names[pick(rng)];
+      if (std::find(chosen.begin(), chosen.end(), name) == chosen.end()) chosen.push_back(name);
+    }
+    std::vector<double> w(chosen.size());
+    double sum = 0;
+    for (double& x : w) sum += (x = 0.01 + frac(rng));
+    Composition c;
+    c.basis = FractionBasis::kWeight;
+    for (size_t i = 0; i < chosen.size(); ++i) c.entries.push_back({chosen[i], w[i] / sum, {}});
+    const GrainModulus g = GrainModulusFromMineralogy(t, c);
+    const double tol = 1e-9 * g.k_voigt;
+    EXPECT_LE(g.k_reuss, g.k_hs_lower + tol) << "trial " << trial;
+    EXPECT_LE(g.k_hs_lower, g.k_hs_upper + tol) << "trial " << trial;
+    EXPECT_LE(g.k_hs_upper, g.k_voigt + tol) << "trial " << trial;
+    EXPECT_LE(g.mu_reuss, g.mu_hs_lower + tol) << "trial " << trial;
+    EXPECT_LE(g.mu_hs_lower, g.mu_hs_upper + tol) << "trial " << trial;
+    EXPECT_LE(g.mu_hs_upper, g.mu_voigt + tol) << "trial " << trial;
+    EXPECT_GT(g.sigma_k_s, 0) << "trial " << trial;
   }
 }
 
@@ -119,7 +156,7 @@ Composition Mix(std::initializer_list<MineralFraction> e, FractionBasis basis) {
 }
 
 TEST(GrainModulusFromMineralogy, VolumeMixUsesBuiltinTableAndCheckValues) {
-  // Builtin quartz 37/44 and calcite 76.8/32 are the inputs of domain brief §8 check value 9.
+  // Builtin quartz 37/44 and calcite 76.8/32 are the inputs of check value 9 (docs/check-values.md).
   const GrainModulus g = GrainModulusFromMineralogy(
       MineralTable::Builtin(), Mix({{"quartz", 0.8, {}}, {"calcite", 0.2, {}}}, FractionBasis::kVolume));
   EXPECT_EQ(g.method, GrainModulusMethod::kMineralogy);
@@ -178,7 +215,7 @@ TEST(GrainModulusFromMineralogy, ClayRichMixIsRelativelyLessCertainThanCleanQuar
       t, Mix({{"quartz", 0.7, {}}, {"mixed_clay", 0.3, {}}}, FractionBasis::kVolume));
   EXPECT_DOUBLE_EQ(clean.sigma_k_s_spread, 0.0);
   EXPECT_NEAR(clean.sigma_k_s, t.Get("quartz").sigma_bulk, 1e-6);
-  EXPECT_NEAR(shaly.k_s / GPa, 31.158, 5e-4);  // domain brief §8 check value 10 [computed]
+  EXPECT_NEAR(shaly.k_s / GPa, 31.158, 5e-4);  // check value 10 [computed; docs/check-values.md]
   EXPECT_NEAR(shaly.clay_volume_fraction, 0.3, 1e-15);
   const double rel_clean = clean.sigma_k_s / clean.k_s, rel_shaly = shaly.sigma_k_s / shaly.k_s;
   EXPECT_GT(rel_shaly, 3 * rel_clean) << rel_clean << " vs " << rel_shaly;

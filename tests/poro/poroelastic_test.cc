@@ -9,7 +9,7 @@ namespace {
 
 constexpr double GPa = 1e9;
 
-// Domain brief §8 check value 3 [computed]: quartz (K 37, mu 44 GPa) at
+// Check value 3 [computed; docs/check-values.md]: quartz (K 37, mu 44 GPa) at
 // phi = 0.2, the HS bound gives alpha >= 0.2896.
 TEST(BiotLowerBoundHashinShtrikman, QuartzAtTwentyPercentPorosityIsCheckValue) {
   EXPECT_NEAR(BiotLowerBoundHashinShtrikman(0.2, 37 * GPa, 44 * GPa), 0.2896, 5e-5);
@@ -28,7 +28,7 @@ TEST(BiotLowerBoundHashinShtrikman, LiesBetweenPorosityAndOne) {
   }
 }
 
-// Domain brief §8 check value 4 [computed]: K_dry 10, K_s 37, K_f 2.25 GPa,
+// Check value 4 [computed; docs/check-values.md]: K_dry 10, K_s 37, K_f 2.25 GPa,
 // phi 0.2 -> alpha 0.72973, M 9.6894 GPa, K_u 15.1596 GPa (both ways), B 0.46641.
 TEST(Gassmann, ReproducesCheckValueBothWays) {
   const double k_dry = 10 * GPa, k_s = 37 * GPa, k_f = 2.25 * GPa, phi = 0.2;
@@ -59,7 +59,7 @@ TEST(BiotModulus, PoreModulusFormReducesToBiotModulusWhenPoreModulusEqualsGrainM
   const double alpha = 0.7, phi = 0.15, k_s = 37 * GPa, k_f = 2.25 * GPa;
   EXPECT_NEAR(BiotModulusWithPoreModulus(alpha, phi, k_s, k_f, k_s), BiotModulus(alpha, phi, k_s, k_f), 1e-3);
   // K_phi = 20 GPa: 1/M = 0.7/37 + 0.15 (1/2.25 - 1/20) = 0.0780856 /GPa -> M = 12.8065 GPa
-  // [computed by hand from the domain brief §5 formula].
+  // [computed by hand from the formula in porofit/poro/poroelastic.h].
   EXPECT_NEAR(BiotModulusWithPoreModulus(alpha, phi, k_s, k_f, 20 * GPa) / GPa, 12.8065, 5e-4);
 }
 
@@ -71,7 +71,7 @@ TEST(Skempton, StiffFluidInSoftFrameApproachesOne) {
   EXPECT_GT(SkemptonCoefficient(alpha, m, UndrainedBulkModulus(k_dry, alpha, m)), 0.999);
 }
 
-// Domain brief §8 check value 14 [computed]: C11 30, C12 10, C13 8, C33 20,
+// Check value 14 [computed; docs/check-values.md]: C11 30, C12 10, C13 8, C33 20,
 // K_s 40 GPa -> alpha_h 0.600, alpha_v 0.700.
 TEST(BiotCoefficientVti, ReproducesTransverselyIsotropicCheckValue) {
   const AnisotropicBiot a = BiotCoefficientVti({30 * GPa, 10 * GPa, 8 * GPa, 20 * GPa}, 40 * GPa);
@@ -79,7 +79,7 @@ TEST(BiotCoefficientVti, ReproducesTransverselyIsotropicCheckValue) {
   EXPECT_NEAR(a.vertical, 0.700, 5e-4);
 }
 
-// Domain brief §5: isotropic C reproduces 1 - K/K_s.
+// Isotropic C reproduces 1 - K/K_s [computed].
 TEST(BiotCoefficientVti, IsotropicStiffnessGivesIsotropicAlphaInBothDirections) {
   for (double k : {3.0, 12.0, 30.0}) {
     for (double mu : {1.0, 9.0, 25.0}) {
@@ -94,7 +94,7 @@ TEST(BiotCoefficientVti, IsotropicStiffnessGivesIsotropicAlphaInBothDirections) 
   }
 }
 
-// Domain brief §8 check value 15 [computed]: K 10 +- 0.5, K_s 37 +- 1 GPa
+// Check value 15 [computed; docs/check-values.md]: K 10 +- 0.5, K_s 37 +- 1 GPa
 // -> alpha 0.7297 +- 0.01536.
 TEST(BiotCoefficientWithUncertainty, DeltaMethodMatchesCheckValue) {
   const BiotEstimate e = BiotCoefficientWithUncertainty(10 * GPa, 0.5 * GPa, 37 * GPa, 1 * GPa);

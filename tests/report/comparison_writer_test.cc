@@ -44,7 +44,7 @@ StudyRun RunWithComparison() {
   compare::NestedTest t;
   t.restricted = "exp-modulus";
   t.fuller = "power-ref";
-  t.reason = "no nesting declared between these models (domain brief §3); compare with AICc";
+  t.reason = "no nesting declared between these models; compare with AICc";
   c.tests = {t};
   c.best = "exp-modulus";
   run.comparison_summary = SummarizeComparisons(run);
@@ -81,8 +81,8 @@ TEST(NestedTestsCsv, SaysWhyAPairIsNotTested) {
   WriteNestedTestsCsv(RunWithComparison(), s);
   EXPECT_EQ(Data(s.str()),
             "sample,restricted,fuller,relation,restriction,tested,F,df1,df2,p_value,critical,level,decision,reason\n"
-            "PLUG-1,exp-modulus,power-ref,not-declared,,false,,,,,,0.95,,no nesting declared between these models "
-            "(domain brief §3); compare with AICc\n");
+            "PLUG-1,exp-modulus,power-ref,not-declared,,false,,,,,,0.95,,no nesting declared between these models; "
+            "compare with AICc\n");
 }
 
 TEST(ComparisonGroupsCsv, SummarisesTheGroup) {

@@ -152,11 +152,26 @@ TEST(Csv, EveryTableOpensWithTheCautionAndTheInventedDataNotice) {
 }
 
 TEST(Csv, NoInventedNoticeForAStudyThatDoesNotSayItIsInvented) {
-  StudyRun run = testing::HandBuiltRun("Well 7 plugs");
+  StudyRun run = testing::HandBuiltRun("Well 7 plugs", false);
   run.study.description = "lab programme";
   const std::string csv = Render(WriteFitsCsv, run);
   EXPECT_EQ(csv.find("NOTE: this study's data are invented"), std::string::npos);
   EXPECT_NE(csv.find("CAUTION"), std::string::npos);
+}
+
+// Regression: the notice followed the word "invented" in the name or
+// description, so a real study saying "nothing here is invented" was stamped
+// as invented. Only the declared key decides now.
+TEST(Csv, InventedNoticeFollowsTheDeclaredKeyNotTheWords) {
+  StudyRun real = testing::HandBuiltRun("Well 7 plugs (invented names removed)", false);
+  real.study.description = "measured plugs; nothing here is invented";
+  EXPECT_FALSE(IsInventedStudy(real.study));
+  EXPECT_EQ(InventedNotice(real.study), "");
+  EXPECT_EQ(Render(WriteFitsCsv, real).find("NOTE: this study's data are invented"), std::string::npos);
+  StudyRun declared = testing::HandBuiltRun("Well 7 plugs", true);
+  declared.study.description = "lab programme";
+  EXPECT_TRUE(IsInventedStudy(declared.study));
+  EXPECT_NE(Render(WriteFitsCsv, declared).find("# " + InventedNotice(declared.study)), std::string::npos);
 }
 
 }  // namespace

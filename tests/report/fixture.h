@@ -10,10 +10,12 @@ namespace porofit::testing {
 
 // One static plug, 3 points with sigma, two model choices: a converged
 // exp-modulus fit and a failed power-ref fit (statistics NaN / not computed).
-inline StudyRun HandBuiltRun(const std::string& study_name = "Invented demo study") {
+// `invented`: the study declares its data invented (Study::invented).
+inline StudyRun HandBuiltRun(const std::string& study_name = "Invented demo study", bool invented = true) {
   StudyRun run;
   Study& st = run.study;
   st.name = study_name;
+  st.invented = invented;
   st.description = "hand-built test study";
   st.path = "demo/study.yaml";
   StudySample ss;

@@ -147,7 +147,7 @@ TEST(HtmlReport, CarriesTheCautionTopAndBottomAndTheInventedNotice) {
   ASSERT_TRUE(IsInventedStudy(SampleStudy()));
   EXPECT_NE(h.find(HtmlEscape(InventedNotice(SampleStudy()))), std::string::npos);
   // A study that is not declared invented gets no notice.
-  const StudyRun plain = testing::HandBuiltRun("Plain study");
+  const StudyRun plain = testing::HandBuiltRun("Plain study", false);
   std::ostringstream s;
   WriteHtmlReport(plain, {}, s);
   EXPECT_EQ(s.str().find("id=\"invented-notice\""), std::string::npos);

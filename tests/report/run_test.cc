@@ -8,7 +8,7 @@ namespace porofit {
 namespace {
 
 // A study of `n_samples` exp-modulus plugs generated from K = K_inf - (K_inf - K_0) exp(-P/P_close)
-// with K_inf = 20 + i GPa, K_0 = 8 GPa, P_close = 10 MPa (domain brief §8 check value 12 uses the
+// with K_inf = 20 + i GPa, K_0 = 8 GPa, P_close = 10 MPa (check value 12 of docs/check-values.md uses the
 // i = 0 parameters), with a small deterministic wiggle so the SSR is not zero.
 Study SyntheticStudy(int n_samples) {
   Study st;

@@ -14,8 +14,8 @@
 namespace porofit {
 namespace {
 
-// Synthetic rock: exp-modulus with the parameters of domain brief §8 check
-// value 12 [computed] (K_inf 20 GPa, K_0 8 GPa, P_close 10 MPa).
+// Synthetic rock: exp-modulus with the parameters of check value 12
+// [computed; docs/check-values.md] (K_inf 20 GPa, K_0 8 GPa, P_close 10 MPa).
 constexpr double kKInf = 20, kK0 = 8, kPClose = 10;
 double TrueK(double p_mpa) { return kKInf - (kKInf - kK0) * std::exp(-p_mpa / kPClose); }  // GPa
 double TrueStrain(double p_mpa) {  // plain strain
@@ -74,7 +74,7 @@ TEST(StrainRun, StrainFitRecoversTheExpModulusParametersWithinThreeStandardError
 }
 
 TEST(StrainRun, ExpComplianceStrainFitRecoversCheckValue13Parameters) {
-  // Domain brief §8 check value 13 [computed]: C_inf 0.05, C_0 0.2 1/GPa, P_close 10 MPa.
+  // Check value 13 [computed; docs/check-values.md]: C_inf 0.05, C_0 0.2 1/GPa, P_close 10 MPa.
   std::mt19937_64 rng(13);
   std::normal_distribution<double> z(0.0, 1.0);
   StudySample ss = StrainSample(rng, 2e-6, "exp-compliance");
@@ -154,7 +154,7 @@ TEST(StrainRun, SecantIsBelowTangentAndChordsComeFromDataAndFit) {
     if (p.source == "fitted") {
       ++fitted;
       if (p.pressure > 0) {
-        EXPECT_LT(p.secant, p.tangent) << "crack-closing rock: K_sec < K_t (domain brief §2)";
+        EXPECT_LT(p.secant, p.tangent) << "crack-closing rock: K_sec < K_t (computed: K rises with P)";
       }
       EXPECT_LE(p.tangent_lower, p.tangent);
       EXPECT_GE(p.tangent_upper, p.tangent);

@@ -64,7 +64,7 @@ StudyRun RunOf(std::vector<StudySample> samples) {
   return RunStudy(st, ro);
 }
 
-const Curve kLoading{20, 8, 10};     // domain brief §8 check value 12 parameters
+const Curve kLoading{20, 8, 10};     // check value 12 parameters (docs/check-values.md)
 const Curve kUnloading{22, 13, 8};   // invented, stiffer at every pressure
 
 TEST(BranchTests, LoadingAndStifferUnloadingDiffer) {
@@ -197,12 +197,12 @@ TEST(BranchTests, FAndAiccMatchAHandComputationFromTheFitResults) {
   ASSERT_EQ(ps, 6);
   ASSERT_EQ(pj, 3);
   const double rss_s = f1.ssr + f2.ssr;
-  // Extra-sum-of-squares F, domain brief §7.
+  // Extra-sum-of-squares F (Seber & Wild 1989, Nonlinear Regression, Wiley [from memory]).
   const double f = ((j.ssr - rss_s) / (ps - pj)) / (rss_s / (n - ps));
   EXPECT_NEAR(t.f_test.f, f, 1e-12 * f);
   EXPECT_EQ(t.f_test.df1, 3);
   EXPECT_EQ(t.f_test.df2, 18);
-  // AICc with one common noise variance counted in k (sigma relative), domain brief §7.
+  // AICc with one common noise variance counted in k (sigma relative; Hurvich & Tsai 1989 [from memory]).
   auto aicc = [&](double rss, int k) { return n * std::log(rss / n) + 2.0 * k + 2.0 * k * (k + 1) / (n - k - 1); };
   EXPECT_EQ(t.k_joint, 4);
   EXPECT_EQ(t.k_separate, 7);

@@ -54,9 +54,9 @@ const std::vector<Nesting>& DeclaredNestings() {
   static const std::vector<Nesting> kNestings = [] {
     std::vector<Nesting> v;
     v.push_back({"exp-modulus", "linear-exp", NestingKind::kRegular, "B = 0", "B", 0.0, {},
-                 "A = K_inf, C = K_inf - K_0, D = 1/P_close (domain brief §3)"});
+                 "A = K_inf, C = K_inf - K_0, D = 1/P_close (computed from the two formulas)"});
     v.push_back({"grain-contact", "power-ref", NestingKind::kRegular, "n = 1/3", "n", 1.0 / 3.0, {"P_ref"},
-                 "a = K_ref / P_ref^(1/3), with P_ref fixed (domain brief §3)"});
+                 "a = K_ref / P_ref^(1/3), with P_ref fixed (computed from the two formulas)"});
     v.push_back({"linear", "exp-modulus", NestingKind::kBoundary, "P_close -> infinity", "", 0.0, {},
                  "limit nesting (P_close -> infinity): the F test is invalid; compare with AICc"});
     v.push_back({"power-ref", "power-offset", NestingKind::kBoundary, "P_r -> 0", "", 0.0, {},
@@ -65,7 +65,7 @@ const std::vector<Nesting>& DeclaredNestings() {
                  "boundary nesting (C = 0 is C's lower bound, and D is then unidentified): the F test is "
                  "invalid; compare with AICc"});
     v.push_back({"exp-modulus", "exp-compliance", NestingKind::kNotNested, "", "", 0.0, {},
-                 "not nested (domain brief §3): compare with AICc"});
+                 "not nested (neither formula reduces to the other): compare with AICc"});
     return v;
   }();
   return kNestings;
@@ -433,7 +433,7 @@ SampleComparison CompareSample(std::span<const ComparedFit> fits, const Comparis
         const std::string& user = !IsCatalogueModel(spec_i) ? fits[i].model_id : fits[j].model_id;
         t.reason = "'" + user + "' is not a catalogue model: no nesting is declared for user models; compare with AICc";
       } else if (nest == nullptr) {
-        t.reason = "no nesting declared between these models (domain brief §3); compare with AICc";
+        t.reason = "no nesting declared between these models; compare with AICc";
       } else {
         t.restricted = nest->restricted;
         t.fuller = nest->fuller;

@@ -1,5 +1,5 @@
 // Stress at depth: vertical stress (water + rock load), pore pressure, the
-// horizontal-stress relations and the Biot fixed point (domain brief §6).
+// horizontal-stress relations and the Biot fixed point (docs/depth-method.md).
 #include <algorithm>
 #include <cmath>
 
@@ -55,7 +55,7 @@ double CurveEval::K(double p) const {
 FixedPointResult SolveFixedPoint(const CurveEval& c, double total, double pore, double tolerance,
                                  int max_iterations) {
   // Start from the Terzaghi alpha (n = 1): the pressure is then the plain
-  // differential pressure, which the domain brief §5 names as the default
+  // differential pressure, the usual default reading (common practice)
   // and which is defined wherever a Terzaghi row is.
   FixedPointResult r;
   const double ks = c.k_s();

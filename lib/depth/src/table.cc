@@ -1,6 +1,6 @@
 // The depth-table engine: rows, stresses, the pressure K is evaluated at,
 // K_dry and alpha with delta-method bands, flags and depletion scenarios
-// (domain brief §5 "Evaluating K at depth", §6, §7 "Bands").
+// (method: docs/depth-method.md; bands as in lib/bands).
 #include <algorithm>
 #include <cmath>
 

@@ -822,7 +822,7 @@ FitResult Fit(const FitRequest& req) {
     if (q.at_upper)
       r.warnings.push_back(q.name + " = " + FormatRounded(theta[j], 4) + " " + q.unit + " is at its upper bound");
   }
-  // Closure-pressure identifiability (domain brief §3, M1: outside [P_min/3, 3 P_max] is weakly determined).
+  // Closure-pressure identifiability (common practice, a rule of thumb: outside [P_min/3, 3 P_max] is weakly determined).
   const bool closure_free = m.closure_parameter < 0 || m.closure_parameter >= s.np || !s.fixed[m.closure_parameter];
   if (m.has_closure_pressure() && closure_free) {
     const double pc = m.ClosurePressure(theta.data());

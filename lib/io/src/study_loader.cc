@@ -564,7 +564,7 @@ std::vector<poro::Mineral> ReadMinerals(const Field& f, const std::string& file)
     const std::string what = "mineral " + Quote(name);
     MapReader m(entry.node, file, what, entry.path);
     Field bulk = m.Get("bulk"), shear = m.Get("shear"), density = m.Get("density"), sb = m.Get("sigma_bulk"),
-          ss = m.Get("sigma_shear"), clay = m.Get("clay"), source = m.Get("source");
+          ss = m.Get("sigma_shear"), clay = m.Get("clay"), source = m.Get("source"), checked = m.Get("checked");
     m.Finish();
     for (const Field* r : {&bulk, &shear, &density, &sb, &ss})
       if (!*r) throw InputError(m.at(), "missing required key " + Quote(r->path) + " in " + what);
@@ -585,7 +585,12 @@ std::vector<poro::Mineral> ReadMinerals(const Field& f, const std::string& file)
     RequirePlausibleSigmaText(Measured::kModulus, sb.path, sb.Scalar(), x.sigma_bulk, x.bulk, sb.at);
     RequirePlausibleSigmaText(Measured::kModulus, ss.path, ss.Scalar(), x.sigma_shear, x.shear, ss.at);
     if (clay) x.clay = clay.Boolean();
-    x.source = RequiredText(source, m, what + " (a literature reference with its reliability)");
+    x.source = RequiredText(source, m, what + " (the published source: author, year, title, table)");
+    if (checked) {
+      const std::string issue = poro::MineralCheckIssue(Quote(checked.path), checked.Scalar());
+      if (!issue.empty()) throw InputError(checked.at, issue);
+      x.checked = checked.Scalar();
+    }
     out.push_back(std::move(x));
   }
   list.Finish();
@@ -665,7 +670,8 @@ GrainModulusChoice ReadGrainSpec(const Field& f, const std::string& file, const 
   if (auto issue = poro::ValidateComposition(table, c)) {
     std::string msg = issue->message;
     if (issue->entry >= 0 && msg.find("unknown") != std::string::npos)
-      msg += "; known minerals are the built-in table plus the study's 'minerals:' section";
+      msg += "; known minerals are the built-in table plus the study's 'minerals:' section "
+             "('porofit minerals STUDY.yaml' lists them)";
     throw InputError(issue->Where(c), msg);
   }
   g.basis = c.basis;
@@ -673,6 +679,7 @@ GrainModulusChoice ReadGrainSpec(const Field& f, const std::string& file, const 
   for (const auto& e : c.entries) {
     const poro::Mineral& x = table.Get(e.mineral);
     g.sources.push_back(x.name + ": " + x.source);
+    g.checked.push_back(x.name + ": " + (x.checked.empty() ? std::string("not stated") : x.checked));
   }
   return g;
 }
@@ -927,7 +934,7 @@ Study Loader::Parse(std::string_view text) {
         defaults = top.Get("defaults"), samples = top.Get("samples"), minerals = top.Get("minerals"),
         grain_moduli = top.Get("grain_moduli"), branch_tests = top.Get("branch_tests"),
         joint_fits = top.Get("joint_fits"), user_models = top.Get("user_models"),
-        sample_table = top.Get("sample_table");
+        sample_table = top.Get("sample_table"), invented = top.Get("invented");
   Field comparison = top.Get("comparison");
   Field depth_tables = top.Get("depth_tables");
   top.Finish();
@@ -936,6 +943,7 @@ Study Loader::Parse(std::string_view text) {
   if (!name) throw InputError(top.at(), "missing required key 'name' in the study");
   study_.name = name.Scalar();
   if (description) study_.description = description.Scalar();
+  if (invented) study_.invented = invented.Boolean();
   if (branch_tests) study_.branch_tests = io::detail::ReadBranchTestSettings(branch_tests, file_);
   if (user_models) {  // before defaults and samples, which may name them
     study_.user_models = io::detail::ReadUserModels(user_models, file_, text, *registry_);

@@ -18,7 +18,7 @@ struct ExpCompliance {
     using std::exp;
     return T(1.0) / (th[0] + (th[1] - th[0]) * exp(-p / th[2]));
   }
-  // eps = C_inf P + (C_0 - C_inf) P_close (1 - exp(-P/P_close))  (domain brief §3, M2).
+  // eps = C_inf P + (C_0 - C_inf) P_close (1 - exp(-P/P_close))  [computed].
   template <typename T>
   static T Strain(const T* th, const T& p) {
     using std::expm1;

@@ -18,7 +18,7 @@ struct ExpModulus {
     using std::exp;
     return th[0] - (th[0] - th[1]) * exp(-p / th[2]);
   }
-  // eps(P) = P/K_inf + (P_close/K_inf) ln[K(P)/K_0]  (domain brief §3, M1 [computed]).
+  // eps(P) = P/K_inf + (P_close/K_inf) ln[K(P)/K_0]  [computed].
   template <typename T>
   static T Strain(const T* th, const T& p) {
     using std::log;

@@ -67,7 +67,7 @@ ModelSpec MakeGrainContactModel() {
   s.start = [params = s.parameters](std::span<const double> x, std::span<const double> y) {
     const Points p = PreparePoints(x, y, true, true);
     const DataScale sc = ScaleOf(p);
-    // a = mean(K / P^(1/3)) over P > 0 (domain brief §3).
+    // a = mean(K / P^(1/3)) over P > 0 (least squares for a with P^(1/3) fixed [computed]).
     double acc = 0;
     for (size_t i = 0; i < p.size(); ++i) acc += p.y[i] / std::cbrt(p.x[i]);
     const double a = p.empty() ? kNaN : acc / static_cast<double>(p.size());

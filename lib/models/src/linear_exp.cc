@@ -92,7 +92,7 @@ ModelSpec MakeLinearExpModel() {
     const LineFit decay = FitLine(lx, ly, w);
     if (decay.ok && decay.slope < 0) d = -decay.slope;
     d = std::clamp(d, 1e-3 / sc.x_max, 1e3 / sc.x_max);
-    // C = A - K(P_min) (domain brief §3), kept inside 0 < C < A.
+    // C = A - K(P_min) (common practice), kept inside 0 < C < A.
     const double c = std::clamp(a - p.y[0], 0.01 * a, 0.99 * a);
     return FinishStart("linear-exp", params, {a, b, c, d}, fallback);
   };

@@ -64,7 +64,7 @@ ModelSpec MakePowerOffsetModel() {
   s.start = [params = s.parameters](std::span<const double> x, std::span<const double> y) {
     const Points p = PreparePoints(x, y, false, true);
     const DataScale sc = ScaleOf(p);
-    // P_r at the median data pressure (domain brief §3), then K_0 and n by a
+    // P_r at the median data pressure (common practice), then K_0 and n by a
     // straight line of ln K against ln(1 + P/P_r).
     std::vector<double> xs;
     for (size_t i = 0; i < std::min(x.size(), y.size()); ++i)

@@ -58,7 +58,7 @@ std::vector<double> FinishStart(std::string_view id, const std::vector<Parameter
 /// Start for a saturating rise y = y_inf - (y_inf - y_0) exp(-x/x_c), shared
 /// by exp-modulus (on K) and exp-compliance (on -C): y_inf = y_max plus 2 %;
 /// y_0 from the first two points extrapolated to x = 0; x_c from the slope
-/// (-1/x_c) of ln(y_inf - y) against x (domain brief §3, M1). Returns
+/// (-1/x_c) of ln(y_inf - y) against x (common practice). Returns
 /// {y_inf, y_0, x_c} with y_0 < y_inf and x_c > 0, all finite; the fallbacks
 /// are used for empty data.
 std::vector<double> SaturatingRiseStart(const Points& p, double fallback_y, double fallback_x);

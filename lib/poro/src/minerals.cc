@@ -2,6 +2,7 @@
 
 #include <yaml-cpp/yaml.h>
 
+#include <algorithm>
 #include <array>
 #include <cmath>
 #include <fstream>
@@ -86,8 +87,8 @@ double UnitFactor(const YAML::Node& units, const char* key, units::Quantity q,
 
 constexpr std::array<const char*, 2> kRootKeys = {"units", "minerals"};
 constexpr std::array<const char*, 2> kUnitKeys = {"modulus", "density"};
-constexpr std::array<const char*, 7> kMineralKeys = {"bulk",        "shear",       "density", "sigma_bulk",
-                                                     "sigma_shear", "clay",        "source"};
+constexpr std::array<const char*, 8> kMineralKeys = {"bulk",       "shear", "density", "sigma_bulk",
+                                                     "sigma_shear", "clay",  "source",  "checked"};
 
 Mineral ParseMineral(const std::string& name, const YAML::Node& key, const YAML::Node& node,
                      double modulus_factor, double density_factor, const std::string& file) {
@@ -123,7 +124,14 @@ Mineral ParseMineral(const std::string& name, const YAML::Node& key, const YAML:
   if (!s.IsScalar()) throw InputError(At(file, s.Mark()), name + ".source must be text");
   m.source = s.Scalar();
   if (m.source.find_first_not_of(" \t") == std::string::npos)
-    throw InputError(At(file, s.Mark()), name + ".source is empty; give the reference and its reliability tag");
+    throw InputError(At(file, s.Mark()), name + ".source is empty; give the published source (author, year, title, table)");
+
+  if (const YAML::Node c = node["checked"]) {
+    const std::string text = c.IsScalar() ? c.Scalar() : std::string();
+    const std::string issue = MineralCheckIssue(name + ".checked", text);
+    if (!issue.empty()) throw InputError(At(file, c.Mark()), issue);
+    m.checked = text;
+  }
   return m;
 }
 
@@ -131,7 +139,22 @@ Mineral ParseMineral(const std::string& name, const YAML::Node& key, const YAML:
 
 bool Mineral::SameValues(const Mineral& o) const {
   return name == o.name && bulk == o.bulk && shear == o.shear && density == o.density &&
-         sigma_bulk == o.sigma_bulk && sigma_shear == o.sigma_shear && clay == o.clay && source == o.source;
+         sigma_bulk == o.sigma_bulk && sigma_shear == o.sigma_shear && clay == o.clay && source == o.source &&
+         checked == o.checked;
+}
+
+const std::vector<std::string>& MineralCheckValues() {
+  static const std::vector<std::string> values = {"against source excerpt", "against secondary citation",
+                                                  "from memory"};
+  return values;
+}
+
+std::string MineralCheckIssue(const std::string& field, const std::string& value) {
+  const auto& allowed = MineralCheckValues();
+  if (std::find(allowed.begin(), allowed.end(), value) != allowed.end()) return {};
+  std::string msg = field + " = " + Quoted(value) + " is not one of ";
+  for (size_t i = 0; i < allowed.size(); ++i) msg += (i ? ", " : "") + Quoted(allowed[i]);
+  return msg;
 }
 
 const MineralTable& MineralTable::Builtin() {
@@ -146,10 +169,7 @@ const Mineral* MineralTable::Find(std::string_view name) const {
 
 const Mineral& MineralTable::Get(std::string_view name, const SourceLocation& where) const {
   if (const Mineral* m = Find(name)) return *m;
-  std::string msg = "unknown mineral " + Quoted(std::string(name));
-  const std::string near = NearestWord(std::string(name), Names());
-  if (!near.empty()) msg += " (did you mean " + Quoted(near) + "?)";
-  throw InputError(where, msg);
+  throw InputError(where, UnknownMineralMessage(*this, name));
 }
 
 void MineralTable::Set(Mineral mineral) {

@@ -127,10 +127,7 @@ std::optional<CompositionIssue> ValidateComposition(const MineralTable& table, c
     const MineralFraction& e = c.entries[i];
     const int idx = static_cast<int>(i);
     if (!table.Find(e.mineral)) {
-      std::string msg = "unknown mineral " + Quoted(e.mineral);
-      const std::string near = NearestWord(e.mineral, table.Names());
-      if (!near.empty()) msg += " (did you mean " + Quoted(near) + "?)";
-      return CompositionIssue{msg, idx};
+      return CompositionIssue{UnknownMineralMessage(table, e.mineral), idx};
     }
     if (!seen.insert(e.mineral).second)
       return CompositionIssue{"mineral " + Quoted(e.mineral) + " is listed twice", idx};

@@ -127,10 +127,13 @@ void WriteGrainModulusCsvHeader(const Study& study, const RunMetadata& meta, std
        "mineralogy: K_s = Hill average, sigma_K_s^2 = sigma_spread^2 + sigma_table^2 with sigma_spread = "
        "(Voigt - Reuss)/(2 sqrt 3); blank = not applicable",
        "shared_with lists the samples of the same group: their alpha errors are correlated through K_s",
-       "sources: ' | '-separated, one per mineral (table source) or the measurement's source"});
+       "sources: ' | '-separated, one per mineral (the published source in the mineral table) or the "
+       "measurement's source",
+       "checked: ' | '-separated, one per mineral: how its table values were compared with their source "
+       "(against source excerpt; against secondary citation; from memory = recalled, not compared; not stated)"});
   out << "sample,group,method,K_s_GPa,sigma_K_s_GPa,sigma_spread_GPa,sigma_table_GPa,K_voigt_GPa,K_reuss_GPa,"
          "K_hill_GPa,K_hs_lower_GPa,K_hs_upper_GPa,mu_s_GPa,sigma_mu_s_GPa,clay_volume_fraction,basis,composition,"
-         "K_f_GPa,sigma_K_f_GPa,shared_with,sources\n";
+         "K_f_GPa,sigma_K_f_GPa,shared_with,sources,checked\n";
 }
 
 void WriteGrainModulusCsvRow(const StudySample& ss, const std::vector<std::string>& shared_with, std::ostream& out) {
@@ -152,7 +155,7 @@ void WriteGrainModulusCsvRow(const StudySample& ss, const std::vector<std::strin
                    mineral ? std::string(poro::ToString(g.basis)) : std::string(), CsvField(detail::Join(comp, "; ")),
                    ss.fluid ? Num(ss.fluid->k_f / G) : std::string(), ss.fluid ? Num(ss.fluid->sigma / G) : std::string(),
                    CsvField(detail::Join(shared_with, ";")),
-                   CsvField(detail::Join(g.sources, " | "))});
+                   CsvField(detail::Join(g.sources, " | ")), CsvField(detail::Join(g.checked, " | "))});
   }
 }
 

@@ -90,7 +90,7 @@ std::string HorizontalText(const depth::StressSpec& s) {
   return "";
 }
 
-// Depth-specific cautions (domain brief §9), after CautionText().
+// Depth-specific cautions (common practice), after CautionText().
 const std::vector<std::string>& DepthCautions() {
   static const std::vector<std::string> c = {
       "depth tables are decision support only: they may feed mud-weight windows, casing seats, fracture-gradient, "

@@ -15,13 +15,7 @@ std::string CautionText() {
          "operational use.";
 }
 
-bool IsInventedStudy(const Study& study) {
-  auto has = [](std::string s) {
-    for (char& c : s) c = static_cast<char>(std::tolower(static_cast<unsigned char>(c)));
-    return s.find("invented") != std::string::npos;
-  };
-  return has(study.name) || has(study.description);
-}
+bool IsInventedStudy(const Study& study) { return study.invented; }
 
 std::string InventedNotice(const Study& study) {
   if (!IsInventedStudy(study)) return {};

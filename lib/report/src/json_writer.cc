@@ -301,6 +301,7 @@ Json GrainJson(const StudySample& ss, const std::vector<std::string>& shared_wit
     j["central_value"] = "Hill average; sigma^2 = sigma_spread^2 + sigma_table^2, sigma_spread = (V - R)/(2 sqrt 3)";
   }
   j["sources"] = g.sources;
+  if (v.method == poro::GrainModulusMethod::kMineralogy) j["checked"] = g.checked;
   return j;
 }
 
@@ -507,6 +508,7 @@ void AddResultsJsonTail(const StudyRun& run, Json& j) {
                          {"sigma_shear_GPa", Number(m.sigma_shear / units::kGPa)},
                          {"clay", m.clay},
                          {"source", m.source},
+                         {"checked", m.checked.empty() ? Json(nullptr) : Json(m.checked)},
                          {"location", m.where.ToString()}});
   j["mineral_overrides"] = overrides;
   j["alpha_notes"] = {detail::CorrelationCaveat()};

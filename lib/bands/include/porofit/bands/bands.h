@@ -1,6 +1,7 @@
 #pragma once
 // Uncertainty bands of K_dry(P) and the Biot coefficient alpha(P) = 1 - K_dry/K_s
-// from one fit, by three methods (domain brief §7, "Bands" and "Resampling"):
+// from one fit, by three methods (delta method, Monte Carlo and bootstrap as in Efron & Tibshirani 1993,
+// An Introduction to the Bootstrap, Chapman & Hall [from memory]):
 //
 //   delta method  Var f(P) = g^T Cov g with the full covariance of the free
 //                 parameters, augmented with K_s (independent of the fit):

@@ -1,8 +1,10 @@
 #pragma once
-// Model comparison of one sample (domain brief §7 "Model selection"): the
+// Model comparison of one sample (Burnham & Anderson 2002, Model Selection and
+// Multimodel Inference, 2nd ed., Springer [from memory]): the
 // information criteria of every model fitted to the sample, their
 // differences, Akaike weights and ranks; nested F tests for the regular
-// nestings of the catalogue only (domain brief §3 "Nesting"), with a reason
+// nestings of the catalogue only (DeclaredNestings() below, computed from the model
+// formulas), with a reason
 // for every pair of models that is not tested; and optional cross-validation
 // (leave-one-out, leave-highest-pressure-out) by refitting through
 // porofit::Fit.
@@ -113,7 +115,7 @@ enum class NestingKind {
 };
 std::string_view ToString(NestingKind k);  ///< "regular", "boundary-or-limit", "not-nested", "not-declared"
 
-/// One declared relation between two catalogue models (domain brief §3).
+/// One declared relation between two catalogue models (computed from their formulas).
 struct Nesting {
   std::string restricted;    ///< model id of the smaller model
   std::string fuller;        ///< model id of the larger one

@@ -1,5 +1,6 @@
 #pragma once
-// Statistical primitives of model comparison (domain brief §7), shared by the
+// Statistical primitives of model comparison (Akaike 1974; Hurvich & Tsai
+// 1989; Seber & Wild 1989, Nonlinear Regression, Wiley [from memory]), shared by the
 // per-sample ranking, the branch (hysteresis) tests and joint fits.
 //
 // Conventions: scores are information criteria (AIC, AICc or BIC; lower is

@@ -1,5 +1,5 @@
 #pragma once
-// Model comparison across samples (domain brief §7: summed AICc, win counts,
+// Model comparison across samples (common practice: summed AICc, win counts,
 // median weights), as an accumulator that works while samples stream in:
 //
 //   GroupAccumulator acc(options.group_by, options.criterion);

@@ -6,7 +6,7 @@
 // Uncertainty by first-order propagation with independent errors:
 //   sigma_K^2  = (K/rho)^2 sigma_rho^2 + (2 rho Vp sigma_Vp)^2 + ((8/3) rho Vs sigma_Vs)^2
 //   sigma_mu^2 = (Vs^2 sigma_rho)^2 + (2 rho Vs sigma_Vs)^2
-// (domain brief §2). All inputs and outputs in SI: m/s, kg/m^3, Pa.
+// (computed: first-order propagation of independent errors). All inputs and outputs in SI: m/s, kg/m^3, Pa.
 //
 // Quality checks: K >= 0 needs Vp/Vs >= sqrt(4/3) = 1.1547; a positive
 // Poisson ratio needs Vp/Vs > sqrt(2). Note that saturated ultrasonic moduli

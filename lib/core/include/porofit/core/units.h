@@ -7,7 +7,8 @@
 // here. Unit spellings are matched case-sensitively as listed (plus a few
 // common aliases such as "g/cm3" for "g/cc").
 //
-// Conversion factors (domain brief §2): 1 psi = 6894.757293168 Pa (exact by the
+// Conversion factors (NIST SP 811, Thompson & Taylor 2008, Guide for the Use
+// of the International System of Units, Appendix B [from memory]): 1 psi = 6894.757293168 Pa (exact by the
 // definition of the pound-force and inch); 1 bar = 1e5 Pa; 1 ft = 0.3048 m
 // (international foot); 1 lb = 0.45359237 kg (international pound); 1 US gal =
 // 3.785411784e-3 m^3 (231 cubic inches), so 1 ppg (lb/US gal) =
@@ -15,7 +16,7 @@
 // pressure gradient) are the hydrostatic gradient rho * g of that density with
 // standard gravity g = 9.80665 m/s^2 (kStandardGravity): 1 g/cc -> 9.80665
 // kPa/m = 0.43353 psi/ft, 1 ppg -> 0.051948 psi/ft, and 1 psi/ft = 22.6206
-// kPa/m, the gradient of 2.3067 g/cc (domain brief §8 check value 8).
+// kPa/m, the gradient of 2.3067 g/cc (computed with g = 9.80665 m/s^2).
 #include <optional>
 #include <string>
 #include <string_view>

@@ -1,5 +1,5 @@
 #pragma once
-// Alpha-versus-depth tables (domain brief §5 "Evaluating K at depth" and §6).
+// Alpha-versus-depth tables (method: docs/depth-method.md).
 //
 // A table maps every depth step of a well to the pressure at which a fitted
 // K_dry(P) curve is evaluated, and gives K_dry and alpha = 1 - K_dry/K_s with

@@ -1,6 +1,6 @@
 #pragma once
 // Residual diagnostics of a least-squares fit, as free functions so each can
-// be checked on its own (domain brief §7, "Diagnostics"; all are weak when
+// be checked on its own (common practice; all are weak when
 // n < 10). Fit() fills FitResult::residuals with them.
 #include <Eigen/Core>
 

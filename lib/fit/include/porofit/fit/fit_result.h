@@ -112,7 +112,7 @@ struct FitResult {
   double rmse = 0;        ///< sqrt(mean raw residual^2), SI
   double r_squared = 0;   ///< 1 - SSR/SS_tot, SS_tot = sum w_i (y_i - ybar_w)^2, w_i = 1/sigma_i^2
   /// Information criteria from the Gaussian log-likelihood, dropping the
-  /// constants shared by every model fitted to the same data (domain brief §7;
+  /// constants shared by every model fitted to the same data (common practice;
   /// Akaike 1974, Hurvich & Tsai 1989, Schwarz 1978). Which form depends on
   /// FitOptions::scale_covariance:
   ///  - true (sigma only relative, the noise level is estimated):

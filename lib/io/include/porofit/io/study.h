@@ -41,6 +41,10 @@ struct GrainModulusChoice {
   /// Literature sources of every value used: each mineral's table source, or
   /// the measurement's `source` text.
   std::vector<std::string> sources;
+  /// Mineralogy: how each mineral's values were checked against its source,
+  /// "quartz: from memory" (poro::MineralCheckValues(), or "not stated"), in
+  /// the order of `sources`. Empty for a measured K_s.
+  std::vector<std::string> checked;
   SourceLocation where;
 };
 
@@ -129,6 +133,10 @@ inline constexpr size_t kMaxStudySamples = 1000000;
 struct Study {
   std::string name;
   std::string description;
+  /// `invented: true` at the top level: the study's data are invented (a
+  /// demonstration), and every output carries the invented-data notice.
+  /// Only this key decides it; the name and description never do.
+  bool invented = false;
   std::string path;               ///< the study file
   std::vector<InputFile> inputs;  ///< study file first, then data files in order of use
   std::vector<StudySample> samples;

@@ -21,7 +21,7 @@ namespace porofit {
 
 /// How the solver sees a parameter. kLog: the solver works on u = ln(theta),
 /// which keeps a positive scale parameter positive and improves conditioning
-/// (domain brief §3, M1: fit ln P*). Reported values are always theta.
+/// (common practice: fit ln P*). Reported values are always theta.
 enum class ParameterTransform { kIdentity, kLog };
 
 struct ParameterSpec {
@@ -63,7 +63,7 @@ struct ModelSpec {
   /// dy/dx, exact: the tangent modulus slope dK/dP for crack-closure models.
   std::function<double(const double* theta, double x)> slope;
   /// Volumetric strain eps(x) = integral_0^x dx'/y(x') (compression positive):
-  /// in closed form where one exists (domain brief §3), else by quadrature
+  /// in closed form where one exists (computed), else by quadrature
   /// (see strain_method); empty for models without a strain (user formulas). Working units: for K in GPa and P in MPa, eps is MPa/GPa, so
   /// multiply by 1e-3 for a plain strain.
   std::function<double(const double* theta, double x)> strain;

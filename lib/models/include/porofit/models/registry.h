@@ -10,7 +10,7 @@ namespace porofit {
 
 class ModelRegistry {
  public:
-  /// The built-in catalogue (domain brief §3), in a fixed order:
+  /// The built-in catalogue (references in each model's spec and README.md), in a fixed order:
   /// linear, exp-modulus, exp-compliance, linear-exp, power-ref,
   /// power-offset, grain-contact.
   static const ModelRegistry& Builtin();

@@ -5,7 +5,7 @@
 // Static drained tests record eps_v against P; differentiating noisy strain to
 // get K amplifies the noise, so the integrated model
 //     eps(P; theta) = integral_0^P dP' / K(P'; theta)     (compression positive)
-// is fitted to the strain directly (domain brief §2, §3). The fitted theta are
+// is fitted to the strain directly (common practice). The fitted theta are
 // the K-model's own parameters: the tangent modulus is K(P; theta_hat) and the
 // secant modulus P / eps(P; theta_hat).
 //

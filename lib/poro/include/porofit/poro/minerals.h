@@ -1,9 +1,10 @@
 #pragma once
 // Mineral elastic moduli as data.
 //
-// A MineralTable maps a mineral name ("quartz", "gulf_clay", ...) to its bulk
-// and shear modulus, density, 1-sigma uncertainties of both moduli and the
-// literature source of the values. The default table is config/minerals.yaml,
+// A MineralTable maps a mineral name ("quartz", "illite", ...) to its bulk
+// and shear modulus, density, 1-sigma uncertainties of both moduli, the
+// published source of the values and, separately, how they were checked
+// against it. The default table is config/minerals.yaml,
 // compiled into the library at build time (MineralTable::Builtin()), so no
 // file is needed at run time; a study may load its own table and Merge() it
 // over the built-in one.
@@ -22,7 +23,10 @@
 //       sigma_bulk: 0.74  # 1-sigma of K, >= 0
 //       sigma_shear: 0.88 # 1-sigma of mu, >= 0
 //       clay: false       # optional, default false; counts toward the clay volume fraction
-//       source: "..."     # required, non-empty: reference with its reliability tag
+//       source: "..."     # required, non-empty: the published source (author, year,
+//                         #   title, publisher or journal, table where known)
+//       checked: from memory  # optional: how the values were checked against the
+//                         #   source, one of MineralCheckValues(); absent = not stated
 //
 // All values are stored in SI (Pa, kg/m^3). Errors are porofit::InputError
 // located at the offending key or value (one-based line and column).
@@ -45,10 +49,13 @@ struct Mineral {
   double sigma_bulk = 0;     ///< 1-sigma uncertainty of K, Pa
   double sigma_shear = 0;    ///< 1-sigma uncertainty of mu, Pa
   bool clay = false;         ///< counts toward the clay volume fraction
-  std::string source;        ///< literature source and its reliability tag
+  std::string source;        ///< published source of the values
+  /// How the values were checked against `source`: one of
+  /// MineralCheckValues(), or "" when the table does not say.
+  std::string checked;
   SourceLocation where;      ///< where the entry was written
 
-  /// Equal values (name, moduli, density, sigmas, clay flag, source);
+  /// Equal values (name, moduli, density, sigmas, clay flag, source, checked);
   /// the location is ignored.
   bool SameValues(const Mineral& other) const;
 };
@@ -65,9 +72,15 @@ class MineralTable {
   /// The mineral called `name`, or nullptr.
   const Mineral* Find(std::string_view name) const;
 
-  /// The mineral called `name`; throws InputError at `where` naming the
-  /// closest known mineral if there is none.
+  /// The mineral called `name`; throws InputError at `where` with
+  /// UnknownMineralMessage() if there is none.
   const Mineral& Get(std::string_view name, const SourceLocation& where = {}) const;
+
+  /// Names close to `name`, best first: for "clay" or "clays" every clay
+  /// mineral; otherwise names that start with `name` or contain it (or that
+  /// `name` contains), then names within max(2, |name|/3) edits of it, nearest
+  /// first. At most `limit` names; empty when nothing is close.
+  std::vector<std::string> CloseMatches(std::string_view name, std::size_t limit = 8) const;
 
   /// Adds or replaces one mineral (whole entry). POROFIT_CHECKs a non-empty name.
   void Set(Mineral mineral);
@@ -85,9 +98,30 @@ class MineralTable {
   std::map<std::string, Mineral, std::less<>> minerals_;
 };
 
+/// The accepted values of a mineral's `checked` key, in order of strength:
+/// "against source excerpt", "against secondary citation", "from memory".
+const std::vector<std::string>& MineralCheckValues();
+
+/// "" if `value` is one of MineralCheckValues(); otherwise the message of the
+/// rule broken, naming `field` and the value ("quartz.checked = 'yes' is not
+/// one of ...").
+std::string MineralCheckIssue(const std::string& field, const std::string& value);
+
+/// "unknown mineral 'illit' (did you mean 'illite'?)": the name and its
+/// CloseMatches() in `table` (several: "did you mean one of 'a', 'b'?";
+/// "clay": "the clay minerals are 'a', 'b', ...").
+std::string UnknownMineralMessage(const MineralTable& table, std::string_view name);
+
+/// The table as text for a person: one block per mineral with K, mu, density,
+/// their 1-sigmas in GPa and g/cc, the clay flag, the source and how it was
+/// checked, each on its own line; minerals named in `from_study` are marked
+/// as the study's. Starts with the units and the table's cautions.
+std::string DescribeMineralTable(const MineralTable& table, const std::vector<std::string>& from_study = {});
+
 /// Reads a mineral table file (format above). Throws InputError if the file
 /// cannot be read, is not valid YAML, or breaks a rule (unknown or missing key,
-/// negative modulus, bad unit, empty source, duplicate or malformed name).
+/// negative modulus, bad unit, empty source, a `checked` value outside
+/// MineralCheckValues(), duplicate or malformed name).
 MineralTable LoadMineralTable(const std::string& path);
 
 /// Parses mineral-table text; `file_label` names it in error locations.

@@ -2,7 +2,8 @@
 // Grain (mineral) moduli of a rock from its mineralogy, or from a measurement.
 //
 // Mixing laws for the effective modulus of a mineral aggregate with volume
-// fractions f_i (domain brief §4):
+// fractions f_i (Mavko, Mukerji & Dvorkin 2009, The Rock Physics Handbook,
+// 2nd ed., Cambridge University Press, chapter on effective media [from memory]):
 //   Voigt   M_V = sum f_i M_i                         (upper bound)
 //   Reuss   1/M_R = sum f_i / M_i                     (lower bound)
 //   Hill    M_H = (M_V + M_R) / 2                     (Hill, 1952, Proc. Phys. Soc. A 65)
@@ -13,8 +14,8 @@
 //       Gamma(z) = [sum f_i/(mu_i + z)]^-1 - z,  zeta(K, mu) = (mu/6)(9K + 8mu)/(K + 2mu)
 //   with the extremes taken over constituents with f_i > 0. R <= HS- <= HS+ <= V.
 //   Hill is not guaranteed to lie inside the HS bounds: for quartz-calcite
-//   80/20 it is 43.119 GPa against HS+ 42.972 GPa (domain brief §8 check 9).
-//   Hill is still the central value (domain brief §4); the bounds are reported.
+//   80/20 it is 43.119 GPa against HS+ 42.972 GPa [computed]).
+//   Hill is still the central value (common practice); the bounds are reported.
 //
 // XRD reports weight fractions; volume fractions follow from the mineral
 // densities: v_i = (w_i/rho_i) / sum_j (w_j/rho_j).

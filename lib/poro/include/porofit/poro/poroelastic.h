@@ -9,7 +9,7 @@
 // The functions are plain formulas. They do not clip or validate: inputs
 // outside the physical range give the formula's value (possibly negative,
 // inf or NaN). Use CheckBiotCoefficient() to flag violated bounds; the domain
-// rule is to flag, never clip (domain brief §5).
+// rule is to flag, never clip (a project rule).
 #include <cmath>
 #include <limits>
 #include <string>
@@ -28,7 +28,7 @@ double BiotCoefficient(double k_dry, double k_s);
 double BiotModulus(double alpha, double phi, double k_s, double k_f);
 
 /// Biot modulus with a distinct unjacketed pore modulus K_phi:
-/// 1/M = alpha/K_s + phi (1/K_f - 1/K_phi) (domain brief §5, computed from
+/// 1/M = alpha/K_s + phi (1/K_f - 1/K_phi) (computed from
 /// Brown & Korringa, 1975, Geophysics 40, 608-616). Equals BiotModulus()
 /// when K_phi = K_s.
 double BiotModulusWithPoreModulus(double alpha, double phi, double k_s, double k_f,
@@ -47,7 +47,7 @@ double SkemptonCoefficient(double alpha, double biot_modulus, double k_u);
 
 /// Hashin-Shtrikman lower limit of alpha for a frame of one grain material
 /// with empty pores: alpha >= 1 - (1 - phi) 4 mu_s / (4 mu_s + 3 phi K_s)
-/// (HS upper bound on K_dry with vacuous pores; domain brief §5 [computed]).
+/// (HS upper bound on K_dry with vacuous pores [computed]).
 double BiotLowerBoundHashinShtrikman(double phi, double k_s, double mu_s);
 
 /// Drained stiffness of a vertically transversely isotropic (VTI) frame,
@@ -72,7 +72,7 @@ AnisotropicBiot BiotCoefficientVti(const VtiStiffness& c, double k_s);
 
 /// alpha with its first-order (delta-method) uncertainty:
 ///   Var alpha = (sigma_K/K_s)^2 + (K sigma_Ks / K_s^2)^2 - 2 (K/K_s^3) cov(K, K_s)
-/// from d alpha/dK = -1/K_s and d alpha/dK_s = K/K_s^2 (domain brief §7).
+/// from d alpha/dK = -1/K_s and d alpha/dK_s = K/K_s^2 (delta method [computed]).
 struct BiotEstimate {
   double alpha = 0;
   double sigma = 0;                ///< sqrt of the total variance (0 if it is negative)

@@ -65,8 +65,9 @@ struct ReportOptions {
 
 /// The caution sentence printed at the top of every output.
 std::string CautionText();
-/// True if the study declares its data invented: the word "invented" appears
-/// (any case) in its name or description. The sample study does.
+/// True if the study declares its data invented with the top-level key
+/// `invented: true` (Study::invented). Words in the name or description do
+/// not count. The sample study declares it.
 bool IsInventedStudy(const Study& study);
 /// The notice printed when IsInventedStudy(); empty otherwise.
 std::string InventedNotice(const Study& study);

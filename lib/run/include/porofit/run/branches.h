@@ -1,8 +1,7 @@
 #pragma once
 // Branch (hysteresis) tests: loading against unloading and first against
-// later cycles of one plug (domain brief §2 and §7, "fit each branch and
-// cycle separately; test joint against separate fits; never pool them
-// silently").
+// later cycles of one plug (common practice: fit each branch and cycle
+// separately, test joint against separate fits, never pool them silently).
 //
 // A branch set is the samples of one plug (Sample::plug) with one measurement
 // kind (static and dynamic are never mixed) and different (branch, cycle).
@@ -97,7 +96,7 @@ struct Hysteresis {
   /// two-member set of other branches "<b> - <a>" with BranchLabel()s.
   std::string pair;
   /// a is the loading and b the unloading of one cycle: b is expected to be
-  /// stiffer (domain brief §2), and the sign is checked.
+  /// stiffer (common practice: crack closure hysteresis), and the sign is checked.
   bool loading_unloading = false;
   bool computed = false;
   std::string reason;  ///< why not computed (no overlap, unusable fit, ...)
