@@ -184,7 +184,11 @@ void ReadSampleTable(const Field& table, const std::string& study_file, const Mo
   int c_key = -1;
   NumColumn p, pc, pp, k, sk;
   for (size_t i = 0; i < dt.header.fields.size(); ++i) {
-    const auto [name, unit] = SplitHeader(dt.header.fields[i]);
+    // Named references, not a structured binding: the lambda below captures
+    // them, which clang 14 does not allow for bindings.
+    const std::pair<std::string, std::string> header = SplitHeader(dt.header.fields[i]);
+    const std::string& name = header.first;
+    const std::string& unit = header.second;
     const SourceLocation at = dt.header.Where(df, i);
     const int idx = static_cast<int>(i);
     auto numeric = [&](NumColumn& c, Quantity q, bool sigma) {
