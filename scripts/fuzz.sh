@@ -37,8 +37,8 @@ run_one() {  # name max_len
 }
 
 summary() {  # name -> one line; returns 1 if the harness found anything
-  local name="$1" log="$work/logs/$name.log" status=0
-  local last execs cov findings
+  local name="$1" status=0
+  local log="$work/logs/$name.log" last execs cov findings
   last="$(grep -E '^#[0-9]+.*cov: [0-9]+' "$log" | tail -n 1 || true)"
   execs="$(sed -nE 's/^#([0-9]+).*/\1/p' <<<"$last")"
   cov="$(sed -nE 's/.*cov: ([0-9]+).*/\1/p' <<<"$last")"
