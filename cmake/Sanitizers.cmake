@@ -1,5 +1,6 @@
-# POROFIT_SANITIZE=ON builds everything with AddressSanitizer and UBSan.
-if(POROFIT_SANITIZE)
+# POROFIT_SANITIZE=ON builds everything with AddressSanitizer and UBSan;
+# POROFIT_FUZZ=ON does too (tests/fuzz/CMakeLists.txt adds the fuzzer flags).
+if(POROFIT_SANITIZE OR POROFIT_FUZZ)
   set(_san -fsanitize=address,undefined -fno-omit-frame-pointer -fno-sanitize-recover=undefined)
   add_compile_options(${_san})
   add_link_options(${_san})

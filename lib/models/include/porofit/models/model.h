@@ -109,9 +109,11 @@ struct ModelSpec {
 /// are exact to rounding. The descriptive fields are filled by the caller.
 template <class F>
 void AttachAutodiff(ModelSpec& spec) {
-  constexpr int N = F::kNumParameters;
+  // N is declared inside each lambda: clang 14 rejects a local constexpr of
+  // the enclosing function template used as an array bound in a lambda.
   spec.value = [](const double* theta, double x) { return F::template Eval<double>(theta, x); };
   spec.value_and_gradient = [](const double* theta, double x, double* grad) {
+    constexpr int N = F::kNumParameters;
     using J = ceres::Jet<double, N>;
     J t[N];
     for (int j = 0; j < N; ++j) t[j] = J(theta[j], j);
@@ -120,6 +122,7 @@ void AttachAutodiff(ModelSpec& spec) {
     return y.a;
   };
   spec.slope = [](const double* theta, double x) {
+    constexpr int N = F::kNumParameters;
     using J = ceres::Jet<double, 1>;
     J t[N];
     for (int j = 0; j < N; ++j) t[j] = J(theta[j]);
@@ -132,9 +135,9 @@ void AttachAutodiff(ModelSpec& spec) {
 /// (the same F as AttachAutodiff; `method` names how Strain integrates 1/K).
 template <class F>
 void AttachStrainAutodiff(ModelSpec& spec, std::string method = "closed form") {
-  constexpr int N = F::kNumParameters;
   spec.strain = [](const double* theta, double x) { return F::template Strain<double>(theta, x); };
   spec.strain_and_gradient = [](const double* theta, double x, double* grad) {
+    constexpr int N = F::kNumParameters;
     using J = ceres::Jet<double, N>;
     J t[N];
     for (int j = 0; j < N; ++j) t[j] = J(theta[j], j);
