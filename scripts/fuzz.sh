@@ -30,7 +30,9 @@ run_one() {  # name max_len
   mkdir -p "$corpus" "$artifacts"
   [ -d "tests/fuzz/regressions/$name" ] && dirs+=("tests/fuzz/regressions/$name")
   # -fork=1 with -ignore_*: keep fuzzing after a finding, so one run lists them all.
-  TMPDIR="$work/tmp" "$sanitize_dir/tests/fuzz/porofit_fuzz_$name" \
+  # An input that hangs the fork child is not always stopped by -timeout; the
+  # outer limit ends the harness, and summary() reports it as failed.
+  TMPDIR="$work/tmp" timeout -k 10 $((seconds + 120)) "$sanitize_dir/tests/fuzz/porofit_fuzz_$name" \
     -max_total_time="$seconds" -max_len="$max_len" -rss_limit_mb=2048 -timeout=30 \
     -fork=1 -ignore_crashes=1 -ignore_ooms=1 -ignore_timeouts=1 \
     -artifact_prefix="$artifacts/" "${dirs[@]}" >"$work/logs/$name.log" 2>&1 || true
